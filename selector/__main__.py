@@ -1,0 +1,7 @@
+"""``python -m selector`` runs the command line."""
+
+import sys
+
+from selector.cli import main
+
+sys.exit(main())
