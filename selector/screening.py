@@ -1,0 +1,1145 @@
+"""Screening rules: which switches can serve a channel at all, and why the others cannot.
+
+Every rule has a stable id (:data:`RULES`, in funnel order) and a sentence template that
+is filled with the numbers of the part and the channel ("needs 4.5 V gate drive for its
+guaranteed Rds(on); the controller gives 3.3 V"). :func:`screen_channel` evaluates every
+(switch, parallel count) row of the inventory for one channel
+(:func:`selector.evaluate.evaluate_switches`), applies every rule vectorised, and
+returns the rows that pass, the rows that fail with all their reasons, and the funnel
+(count of rejected rows per first failing rule).
+
+Rules, in funnel order
+----------------------
+``kind_side``            the switch kind cannot work on the channel's side (P-MOSFET low side)
+``voltage``              blocking voltage incl. overshoot > voltage_derating·v_rating
+``gate_drive_level``     the gate level the topology can give does not reach the part's
+                         guaranteed Rds(on) point (or Vce(sat) gate voltage), incl. "no
+                         suitable gate driver in the inventory"
+``gate_overvoltage``     |Vgs| the gate would see > derated vgs_max
+``threshold_cold``       gate level < 1.5 × V_th,max at the coldest ambient
+``current_continuous``   worst device current > i_rating
+``current_peak``         start-up/inrush peak per device > i_pulse (i_rating if blank)
+``avalanche``            the part needs a freewheel diode (no or too small avalanche
+                         rating, IGBT, PWM) and no diode in the inventory fits the channel
+``switching_data``       the losses cannot be computed from the part's data
+``thermal_runaway``      loss grows faster with temperature than even the best cooling
+                         removes it (loop gain ≥ 1 with an ideal sink and the best interface,
+                         or alone in air if that is better)
+``thermal_no_option``    even an ideal heatsink with the best interface (or free air)
+                         cannot keep the junction at T_lim at the hottest ambient
+``surge``                the same, once the start-up peak's extra rise is added
+
+A part failing several rules is counted in the funnel under its first failing rule; all
+its reasons are kept in ``rejected``. Side "any": both sides are screened; a (part, count)
+passes if it passes on one side (preferring no gate-driver IC, then the low side), and is
+rejected only when it fails on both (its reasons name the side).
+"""
+
+from __future__ import annotations
+
+import copy
+import dataclasses
+import difflib
+import math
+from collections.abc import Callable, Mapping
+from dataclasses import dataclass, field
+from typing import Any
+
+import numpy as np
+import pandas as pd
+
+from selector import checks, drive
+from selector.models import Channel, Conditions, Settings
+
+__all__ = [
+    "CHECK_RULES",
+    "RULES",
+    "ScreenResult",
+    "Screened",
+    "diode_candidates",
+    "driver_candidates",
+    "explain_part",
+    "row_checks",
+    "screen_channel",
+]
+
+#: Rule id -> sentence template (filled with formatted numbers), in funnel order.
+RULES: dict[str, str] = {
+    "kind_side": "{detail}",
+    "voltage": (
+        "must block {v_peak} ({how}) but {derating} × its {v_rating} rating allows "
+        "only {limit}"
+    ),
+    "gate_drive_level": "needs {need} gate drive for its guaranteed {what}; {have}",
+    "gate_overvoltage": (
+        "its gate would see {vgs} ({how}), above its limit {limit} ({factor} × "
+        "vgs_max {vgs_max})"
+    ),
+    "threshold_cold": (
+        "its gate threshold rises to {vth_cold} at {t_min} (vth_max {vth_max} at "
+        "25 °C); the gate gets {vgs}, less than {factor} × that"
+    ),
+    "current_continuous": (
+        "carries {i_dev} per device with {count} in parallel, above its continuous "
+        "rating {i_rating}"
+    ),
+    "current_peak": (
+        "sees {i_peak} per device at start-up with {count} in parallel ({how}), above "
+        "its {limit_name} {limit}"
+    ),
+    "avalanche": "{why}, so it needs a freewheel diode, and {diodes}",
+    "switching_data": "its losses cannot be computed: {reason}",
+    "thermal_runaway": (
+        "runs away thermally: its loss grows by {p1} per K of junction temperature, "
+        "and even the best cooling ({r_best}, {how}) leaves a loop gain of {gain} ≥ 1"
+    ),
+    "thermal_no_option": (
+        "no cooling the inventory allows keeps it at its limit {t_lim}, not even an "
+        "ideal heatsink with the best interface: {detail}"
+    ),
+    "surge": (
+        "the start-up peak adds {rise} to the junction; even with the best cooling "
+        "({how}) it reaches {tj}, above its limit {t_lim}"
+    ),
+}
+
+#: Rules that are value/limit checks, with their unit and sense ("max": value ≤ limit).
+CHECK_RULES: dict[str, tuple[str, str]] = {
+    "voltage": ("V", "max"),
+    "gate_drive_level": ("V", "min"),
+    "gate_overvoltage": ("V", "max"),
+    "threshold_cold": ("V", "min"),
+    "current_continuous": ("A", "max"),
+    "current_peak": ("A", "max"),
+    "avalanche": ("J", "max"),
+}
+
+Evaluator = Callable[..., pd.DataFrame]
+
+
+# ------------------------------------------------------------------------- formatting
+def _q(x: Any, unit: str) -> str:
+    """A number with its unit, 3 significant digits, small values with a prefix."""
+    try:
+        v = float(x)
+    except (TypeError, ValueError):
+        return "?"
+    if math.isnan(v):
+        return "?"
+    if math.isinf(v):
+        return f"{'−' if v < 0 else ''}∞ {unit}".strip()
+    scale = {"J": True, "Ω": True, "W": True, "H": True, "s": True, "A": True}
+    if scale.get(unit) and v != 0 and abs(v) < 1:
+        if abs(v) >= 1e-3 and not (unit == "A" and abs(v) >= 0.1):
+            return f"{v * 1e3:.3g} m{unit}"
+        if abs(v) < 1e-3:
+            return f"{v * 1e6:.3g} µ{unit}"
+    if abs(v) >= 100:
+        return f"{v:.0f} {unit}".strip()
+    return f"{v:.3g} {unit}".strip()
+
+
+def _g(x: float) -> str:
+    return f"{x:g}"
+
+
+# --------------------------------------------------------------------------- results
+@dataclass
+class Screened:
+    """Accepted and rejected rows of a small table (diodes, drivers)."""
+
+    passed: pd.DataFrame
+    rejected: pd.DataFrame  # part, reason
+
+
+@dataclass
+class ScreenResult:
+    """What :func:`screen_channel` returns for one channel.
+
+    Fields
+    ------
+    channel : the channel's name.
+    passed : evaluate_switches rows (one per part and count) that pass every rule, plus
+        ``side``, ``topology``, ``driver_kind`` ("" none, "low_side",
+        "high_side|isolated" = either, "isolated"), ``driver_v_min``/``driver_v_max``
+        [V] (the v_out window a driver must lie in), ``vgs_on_v`` [V] (gate level the
+        losses were evaluated at), ``clamp``, ``divider_r2_ohm``, ``needs_diode``,
+        ``avalanche_ok``, ``diode_vf_v``, ``notes`` ("; "-joined) and the check columns
+        ``<rule>_value``/``<rule>_limit`` of :data:`CHECK_RULES` (see :func:`row_checks`).
+    rejected : one row per failed (part, count): part, count, kind, package, price,
+        side, ``rule`` (first failing rule), ``reason`` (its sentence), ``rules`` and
+        ``reasons`` (every failing rule and sentence, funnel order).
+    funnel : rule id -> rejected rows counted under their first failing rule, every
+        rule of :data:`RULES` in order (zeros included).
+    total : rows screened (parts × counts).
+    diodes : freewheel diodes from the inventory that fit the channel (empty if none
+        or not needed); ``diode_rejected`` the others with reasons.
+    notes : channel-level sentences (assumptions, cautions, missing diode).
+    """
+
+    channel: str
+    passed: pd.DataFrame
+    rejected: pd.DataFrame
+    funnel: dict[str, int]
+    total: int = 0
+    diodes: pd.DataFrame = field(default_factory=pd.DataFrame)
+    diode_rejected: pd.DataFrame = field(default_factory=pd.DataFrame)
+    notes: list[str] = field(default_factory=list)
+
+    @property
+    def rejected_counts(self) -> dict[str, int]:
+        """The funnel without the rules that rejected nothing."""
+        return {k: v for k, v in self.funnel.items() if v}
+
+
+def row_checks(row: Mapping[str, Any]) -> list[dict[str, Any]]:
+    """The checks of one passed row as [{rule, value, limit, margin, unit, ok}, ...].
+
+    For ``ChannelPick.details["checks"]``; rules whose value is blank (not applicable)
+    are left out.
+    """
+    out = []
+    for rule, (unit, sense) in CHECK_RULES.items():
+        v = row.get(f"{rule}_value", np.nan)
+        lim = row.get(f"{rule}_limit", np.nan)
+        if v is None or lim is None or pd.isna(v) or pd.isna(lim):
+            continue
+        v, lim = float(v), float(lim)
+        margin = lim - v if sense == "max" else v - lim
+        out.append(
+            {
+                "rule": rule,
+                "value": v,
+                "limit": lim,
+                "margin": margin,
+                "unit": unit,
+                "ok": bool(margin >= -1e-9),
+            }
+        )
+    return out
+
+
+# ----------------------------------------------------------------- diodes and drivers
+def _num(df: pd.DataFrame, name: str) -> np.ndarray:
+    if name not in df:
+        return np.full(len(df), np.nan)
+    return pd.to_numeric(df[name], errors="coerce").to_numpy(dtype=float)
+
+
+def diode_candidates(
+    diodes: pd.DataFrame,
+    channel: Channel,
+    settings: Settings | None = None,
+    conditions: Conditions | None = None,
+) -> Screened:
+    """Freewheel diodes of the inventory that are rated for the channel.
+
+    Rules (physics §4.1, §10; common practice):
+
+    * V_RRM ≥ Settings.diode_voltage_factor·V_supply (1.5×);
+    * I_F(AV) ≥ I_avg/Settings.diode_current_derating (average from
+      :func:`selector.losses.diode_requirements`: (1 − D)·I for PWM, I0·τ·f for slow
+      on/off), and I_F(AV) ≥ the on-state load current: the diode takes the whole load
+      current at every turn-off. A motor switched off at stall gives a short pulse that a
+      diode's surge rating (many times I_F(AV)) covers;
+    * with ``conditions``: T_j = Ta_max + P_D·rth_ja ≤ tj_max − junction_margin where the
+      diode has rth_ja and tj_max (P_D = V_F·I_avg);
+    * stock 0 is out (blank stock = no limit).
+
+    Returns
+    -------
+    Screened: ``passed`` (the diode rows plus ``p_diode_w``, ``tj_diode_c``) and
+    ``rejected`` (part, reason with the numbers). Both empty when the load needs no diode.
+    """
+    from selector.losses import diode_requirements
+
+    settings = settings or Settings()
+    cols = ["part", "reason"]
+    if diodes is None or len(diodes) == 0 or not channel.needs_freewheel:
+        empty = diodes.iloc[0:0] if diodes is not None else pd.DataFrame()
+        return Screened(empty, pd.DataFrame({c: [] for c in cols}))
+    need = diode_requirements(channel, settings)
+    v_rrm = _num(diodes, "v_rrm")
+    i_avg = _num(diodes, "i_avg")
+    vf = _num(diodes, "vf")
+    stock = _num(diodes, "stock")
+    i_min = max(need.i_avg_min, channel.current)
+    p = np.asarray(need.loss(np.nan_to_num(vf, nan=checks.DIODE_VF_DEFAULT)), float)
+    p = np.broadcast_to(p, (len(diodes),))
+    reasons: list[list[str]] = [[] for _ in range(len(diodes))]
+    tj = np.full(len(diodes), np.nan)
+    if conditions is not None:
+        tj = conditions.ambient_max + p * _num(diodes, "rth_ja")
+        t_lim = _num(diodes, "tj_max") - conditions.junction_margin
+    for i in range(len(diodes)):
+        if not (v_rrm[i] >= need.v_rrm_min):
+            reasons[i].append(
+                f"V_RRM {_q(v_rrm[i], 'V')} is below {_g(settings.diode_voltage_factor)}"
+                f" × the {_q(channel.supply, 'V')} supply = {_q(need.v_rrm_min, 'V')}"
+            )
+        if not (i_avg[i] >= i_min - 1e-12):
+            reasons[i].append(
+                f"I_F(AV) {_q(i_avg[i], 'A')} is below the {_q(i_min, 'A')} it must "
+                "carry (the load current at turn-off, or the average with "
+                f"{_g(settings.diode_current_derating)} derating)"
+            )
+        if conditions is not None and np.isfinite(tj[i]) and np.isfinite(t_lim[i]):
+            if tj[i] > t_lim[i]:
+                reasons[i].append(
+                    f"its junction would reach {_q(tj[i], '°C')} "
+                    f"({_q(p[i], 'W')} × RθJA), above its limit {_q(t_lim[i], '°C')}"
+                )
+        if stock[i] == 0:
+            reasons[i].append("none in stock")
+    ok = np.array([not r for r in reasons], dtype=bool)
+    passed = diodes[ok].copy()
+    passed["p_diode_w"] = p[ok]
+    passed["tj_diode_c"] = tj[ok]
+    rej = pd.DataFrame(
+        {
+            "part": diodes["part"].to_numpy()[~ok],
+            "reason": ["; ".join(r) for r, k in zip(reasons, ok, strict=True) if not k],
+        }
+    )
+    return Screened(passed, rej)
+
+
+def driver_candidates(drivers: pd.DataFrame, need: Any, channel: Channel) -> Screened:
+    """Gate drivers of the inventory that serve a drive need.
+
+    Parameters
+    ----------
+    drivers : inventory drivers (part, kind, v_out [V], v_supply_max [V], stock).
+    need : a :class:`selector.drive.DriveNeed`, or a passed screening row (mapping with
+        ``driver_kind``, ``driver_v_min``, ``driver_v_max``).
+    channel : the channel (supply [V] for high-side drivers).
+
+    Rules: kind among the need's driver kinds; v_out ≥ the part's needed gate level and
+    ≤ its derated gate limit; a ``high_side`` driver must stand the supply
+    (v_supply_max ≥ supply, when given); stock 0 is out. A ``high_side`` driver on a
+    steady-on channel must hold the gate up indefinitely (charge pump): the inventory
+    does not say which do, so those pass with a note to check.
+
+    Returns
+    -------
+    Screened (passed rows plus ``note``; rejected part + reason).
+    """
+    if isinstance(need, drive.DriveNeed):
+        kinds = tuple(need.driver_kinds)
+        v_min, v_max = need.gate_min, need.gate_max
+    else:
+        kinds = tuple(k for k in str(need.get("driver_kind", "") or "").split("|") if k)
+        v_min = float(need.get("driver_v_min", np.nan))
+        v_max = float(need.get("driver_v_max", np.nan))
+    if drivers is None or len(drivers) == 0:
+        d = drivers if drivers is not None else pd.DataFrame()
+        return Screened(d.iloc[0:0], pd.DataFrame({"part": [], "reason": []}))
+    v_out = _num(drivers, "v_out")
+    vs = _num(drivers, "v_supply_max")
+    stock = _num(drivers, "stock")
+    dk = drivers["kind"].astype(object).to_numpy()
+    reasons: list[list[str]] = [[] for _ in range(len(drivers))]
+    steady = drive._steady_high(channel)
+    notes = np.full(len(drivers), "", dtype=object)
+    for i in range(len(drivers)):
+        if dk[i] not in kinds:
+            want = " or ".join(kinds) if kinds else "none (no driver is needed)"
+            reasons[i].append(f"kind {dk[i]}; this part needs {want}")
+            continue
+        if np.isfinite(v_min) and not v_out[i] >= v_min:
+            reasons[i].append(
+                f"v_out {_q(v_out[i], 'V')} is below the {_q(v_min, 'V')} the part needs"
+            )
+        if np.isfinite(v_max) and v_out[i] > v_max + 1e-9:
+            reasons[i].append(
+                f"v_out {_q(v_out[i], 'V')} is above the part's gate limit {_q(v_max, 'V')}"
+            )
+        if dk[i] == "high_side" and np.isfinite(vs[i]) and vs[i] < channel.supply:
+            reasons[i].append(
+                f"v_supply_max {_q(vs[i], 'V')} is below the {_q(channel.supply, 'V')} supply"
+            )
+        if stock[i] == 0:
+            reasons[i].append("none in stock")
+        if dk[i] == "high_side" and steady:
+            notes[i] = (
+                "the channel stays on: this high-side driver must have a charge pump "
+                "(a bootstrap-only driver cannot hold the gate up); check its datasheet"
+            )
+    ok = np.array([not r for r in reasons], dtype=bool)
+    passed = drivers[ok].copy()
+    passed["note"] = notes[ok]
+    rej = pd.DataFrame(
+        {
+            "part": drivers["part"].to_numpy()[~ok],
+            "reason": ["; ".join(r) for r, k in zip(reasons, ok, strict=True) if not k],
+        }
+    )
+    return Screened(passed, rej)
+
+
+# ------------------------------------------------------------------------- evaluation
+def _with_switches(inventory: Any, mask: np.ndarray) -> Any:
+    """A shallow copy of the inventory holding only the masked switches."""
+    sw = inventory.switches[mask]
+    rp = getattr(inventory, "rds_points", None)
+    if rp is not None and len(rp):
+        rp = rp[rp["part"].isin(sw["part"])]
+    if dataclasses.is_dataclass(inventory) and not isinstance(inventory, type):
+        return dataclasses.replace(inventory, switches=sw, rds_points=rp)
+    inv = copy.copy(inventory)
+    inv.switches = sw
+    inv.rds_points = rp
+    return inv
+
+
+def _default_evaluator() -> Evaluator:
+    from selector.evaluate import evaluate_switches
+
+    return evaluate_switches
+
+
+def _evaluate_side(
+    evaluate: Evaluator,
+    inventory: Any,
+    plan: pd.DataFrame,
+    channel: Channel,
+    conditions: Conditions,
+    settings: Settings,
+    counts: Any,
+) -> pd.DataFrame:
+    """evaluate_switches once per distinct gate level of the plan, rows in switch order."""
+    vgs = plan["vgs_on_v"].to_numpy(dtype=float)
+    drv = plan["uses_driver"].to_numpy(dtype=bool)
+    key = np.where(np.isfinite(vgs), np.round(vgs, 9), -1.0)
+    frames = []
+    for k, d in sorted(set(zip(key.tolist(), drv.tolist(), strict=True))):
+        mask = (key == k) & (drv == d)
+        sub = _with_switches(inventory, mask)
+        if (
+            k < 0
+        ):  # the drive failed: evaluate at the channel's level (kept for reasons)
+            ev = evaluate(sub, channel, conditions, settings, counts)
+        elif d:
+            ev = evaluate(
+                sub,
+                channel,
+                conditions,
+                settings,
+                counts,
+                driver=True,
+                driver_voltage=k,
+            )
+        else:
+            ev = evaluate(
+                sub,
+                dataclasses.replace(channel, drive=float(k)),
+                conditions,
+                settings,
+                counts,
+            )
+        frames.append(ev)
+    if not frames:
+        return pd.DataFrame()
+    ev = pd.concat(frames, ignore_index=True)
+    order = pd.Series(np.arange(len(plan)), index=plan["part"].to_numpy())
+    ev["_order"] = ev["part"].map(order).to_numpy()
+    return ev.sort_values(["_order", "count"], kind="stable").reset_index(drop=True)
+
+
+def _best_interface(interfaces: Any) -> dict[str, float]:
+    """Package (upper case) -> smallest rth_cs [K/W] among interfaces with stock."""
+    if interfaces is None or len(interfaces) == 0 or "rth_cs" not in interfaces:
+        return {}
+    best: dict[str, float] = {}
+    stock = _num(interfaces, "stock")
+    rcs = _num(interfaces, "rth_cs")
+    fits = interfaces["fits"].to_numpy() if "fits" in interfaces else [()] * len(rcs)
+    for f, r, s in zip(fits, rcs, stock, strict=True):
+        if not np.isfinite(r) or s == 0:
+            continue
+        if isinstance(f, str):
+            items = [x.strip() for x in f.replace(",", ";").split(";")]
+        elif f is None or (isinstance(f, float) and math.isnan(f)):
+            items = []
+        else:
+            items = [str(x).strip() for x in f]
+        for p in items:
+            if p:
+                best[p.upper()] = min(best.get(p.upper(), math.inf), float(r))
+    return best
+
+
+# ------------------------------------------------------------------------ rule engine
+_DRIVE_WHAT = {"nmos": "Rds(on)", "pmos": "Rds(on)", "igbt": "Vce(sat)"}
+
+
+def _side_table(
+    inventory: Any,
+    channel: Channel,
+    conditions: Conditions,
+    settings: Settings,
+    side: str,
+    evaluate: Evaluator,
+    counts: Any,
+    clamp: bool,
+    diodes_ok: Screened,
+) -> pd.DataFrame:
+    """Every (part, count) row on one side with check columns and fail flags."""
+    sw = inventory.switches.reset_index(drop=True)
+    drivers = getattr(inventory, "drivers", None)
+    plan = drive.drive_table(
+        sw,
+        inventory.rds_points,
+        channel,
+        side,
+        settings,
+        drivers,
+        ambient_min=conditions.ambient_min,
+        clamp=clamp,
+    )
+    plan.insert(0, "part", sw["part"].to_numpy())
+    ev = _evaluate_side(
+        evaluate, inventory, plan, channel, conditions, settings, counts
+    )
+    if len(ev) == 0:
+        return ev
+    pos = ev["_order"].to_numpy(dtype=int)
+    swr = sw.iloc[pos].reset_index(drop=True)
+    pr = plan.iloc[pos].reset_index(drop=True)
+    t = ev.drop(columns=["_order"]).copy()
+    for c in pr.columns:
+        if c not in ("part",):
+            t[c] = pr[c].to_numpy()
+    n = len(t)
+
+    # ---- electrical checks
+    vf = (
+        float(np.nanmax(_num(diodes_ok.passed, "vf")))
+        if len(diodes_ok.passed) and np.isfinite(_num(diodes_ok.passed, "vf")).any()
+        else checks.DIODE_VF_DEFAULT
+    )
+    vchk = checks.voltage_check(swr, channel, conditions, settings, diode_vf=vf)
+    i_dev = t["i_dev_a"].to_numpy(dtype=float)
+    cchk = checks.continuous_current_check(swr, i_dev)
+    pchk = checks.peak_current_check(swr, channel, i_dev)
+    achk = checks.avalanche_check(swr, channel, settings, t["t_lim_c"].to_numpy(float))
+    t["diode_vf_v"] = vf if channel.needs_freewheel else np.nan
+    t["voltage_value"], t["voltage_limit"] = vchk.value, vchk.limit
+    t["gate_drive_level_value"] = t["available_v"]
+    t["gate_drive_level_limit"] = t["gate_min_v"]
+    t["gate_overvoltage_value"] = t["vgs_applied_v"]
+    t["gate_overvoltage_limit"] = t["vgs_limit_v"]
+    t["threshold_cold_value"] = t["vgs_on_v"]
+    t["threshold_cold_limit"] = t["threshold_need_v"]
+    t["current_continuous_value"], t["current_continuous_limit"] = (
+        cchk.value,
+        cchk.limit,
+    )
+    t["current_peak_value"], t["current_peak_limit"] = pchk.value, pchk.limit
+    t["avalanche_value"] = np.where(channel.needs_freewheel, achk.value, np.nan)
+    t["avalanche_limit"] = np.where(channel.needs_freewheel, achk.limit, np.nan)
+    t["avalanche_exact_j"] = achk.extra.get("e_exact_j", np.zeros(n))
+    t["avalanche_ok"] = achk.ok & channel.needs_freewheel
+    t["_av_reason"] = achk.extra["reason"]
+    t["_av_p"] = achk.extra.get("p_avg_w", np.zeros(n))
+    t["_eas_tj0"] = achk.extra.get("eas_tj0_j", np.full(n, np.nan))
+    t["_vbr"] = achk.extra.get("v_br_v", np.full(n, np.nan))
+    t["_i_warn"] = cchk.extra["warn"]
+    t["_pk_from_rating"] = pchk.extra["from_rating"]
+    t["_v_rating"] = _num(swr, "v_rating")
+    t["_i_rating"] = _num(swr, "i_rating")
+    t["_vgs_max"] = _num(swr, "vgs_max")
+    t["_vth_max"] = _num(swr, "vth_max")
+    needs_diode = channel.needs_freewheel & (~achk.ok | (channel.pwm_frequency > 0))
+    t["needs_diode"] = np.asarray(needs_diode, dtype=bool) & channel.needs_freewheel
+
+    # ---- thermal
+    best = _best_interface(getattr(inventory, "interfaces", None))
+    pkg = t["package"].astype(str).str.upper().to_numpy()
+    cs = np.array([best.get(p, np.inf) for p in pkg], dtype=float)
+    rjc = t["rth_jc_k_per_w"].to_numpy(float)
+    rja = t["rth_ja_k_per_w"].to_numpy(float)
+    r_sink = rjc + cs
+    r_air = np.where(np.isfinite(rja), rja, np.inf)
+    p1 = t["p1_w_per_k"].to_numpy(float)
+    p_dev = t["p_dev_w"].to_numpy(float)
+    surge = np.nan_to_num(t["surge_rise_k"].to_numpy(float), nan=0.0)
+    dp = (
+        np.nan_to_num(t["surge_dp_w"].to_numpy(float), nan=0.0)
+        if "surge_dp_w" in t
+        else 0.0
+    )
+    h = t["t_lim_c"].to_numpy(float) - conditions.ambient_max
+    with np.errstate(invalid="ignore"):
+        r_best = np.fmin(r_sink, r_air)
+        gain = np.where(np.isfinite(r_best), p1 * r_best, np.inf)
+        rise_sink = p_dev * r_sink
+        rise_air = p_dev * r_air
+        steady_ok = (rise_sink <= h) | (rise_air <= h)
+        rise_sink_pk = rise_sink + surge + dp * np.where(np.isfinite(cs), cs, 0.0)
+        rise_air_pk = rise_air + surge
+        surge_ok = (rise_sink_pk <= h) | (rise_air_pk <= h)
+    known = np.isfinite(p_dev) & np.isfinite(p1)
+    t["_r_sink"], t["_r_air"], t["_cs"] = r_sink, r_air, cs
+    t["_gain"], t["_h"] = gain, h
+    t["_rise_best"] = np.fmin(rise_sink, rise_air)
+    t["_rise_best_pk"] = np.fmin(rise_sink_pk, rise_air_pk)
+    t["_sink_better"] = rise_sink <= rise_air
+
+    # Follow-on failures are not repeated: a kind that cannot sit on this side has no
+    # drive to check, and losses at a drive level that failed are not the part's fault.
+    usable = t["kind_side_ok"].to_numpy(bool)
+    level_ok = usable & t["gate_drive_level_ok"].to_numpy(bool)
+    driven = level_ok & np.isfinite(t["vgs_on_v"].to_numpy(float))
+    loss_ok = t["loss_ok"].to_numpy(dtype=bool)
+    known &= loss_ok & driven
+    fails = {
+        "kind_side": ~usable,
+        "voltage": ~vchk.ok,
+        "gate_drive_level": usable & ~level_ok,
+        "gate_overvoltage": usable & ~t["gate_overvoltage_ok"].to_numpy(bool),
+        "threshold_cold": level_ok & ~t["threshold_cold_ok"].to_numpy(bool),
+        "current_continuous": ~cchk.ok,
+        "current_peak": ~pchk.ok,
+        "avalanche": t["needs_diode"].to_numpy(bool) & (len(diodes_ok.passed) == 0),
+        "switching_data": driven & ~loss_ok,
+        "thermal_runaway": known & (gain >= 1.0),
+        "thermal_no_option": known & (gain < 1.0) & ~steady_ok,
+        "surge": known & (gain < 1.0) & steady_ok & ~surge_ok,
+    }
+    for rule in RULES:
+        t[f"_fail_{rule}"] = fails[rule]
+    return t
+
+
+_SENTENCE_COLUMNS = (
+    "part", "kind", "package", "side", "count", "t_lim_c", "tj_max_c", "p_dev_w",
+    "p1_w_per_k", "rth_jc_k_per_w", "surge_rise_k", "loss_reason", "drive_case",
+    "driver_kind", "gate_min_v", "vgs_limit_v", "vgs_on_v", "vth_cold_v", "diode_vf_v",
+    "voltage_value", "voltage_limit", "gate_overvoltage_value", "gate_overvoltage_limit",
+    "current_continuous_value", "current_continuous_limit", "current_peak_value",
+    "current_peak_limit", "avalanche_value", "avalanche_limit", "avalanche_exact_j",
+    "_v_rating", "_vgs_max", "_vth_max", "_pk_from_rating", "_av_reason", "_vbr", "_cs",
+    "_r_sink", "_r_air", "_gain", "_h", "_sink_better", "_rise_best_pk",
+)  # fmt: skip
+_NOTE_COLUMNS = (
+    "drive_notes", "_i_warn", "current_continuous_value", "_i_rating",
+    "_pk_from_rating", "needs_diode", "avalanche_ok", "avalanche_value",
+    "avalanche_limit", "t_lim_c", "_av_p", "runaway_no_sink", "loss_notes",
+)  # fmt: skip
+
+
+def _sentences(
+    t: pd.DataFrame,
+    rule: str,
+    channel: Channel,
+    conditions: Conditions,
+    settings: Settings,
+    diode_text: str,
+) -> list[str]:
+    """The sentence of ``rule`` for every row of ``t`` (the rows that fail it)."""
+    tpl = RULES[rule]
+    out = []
+    for r in t[[c for c in _SENTENCE_COLUMNS if c in t]].to_dict("records"):
+        f: dict[str, Any]
+        if rule == "kind_side":
+            f = {
+                "detail": "a P-MOSFET on the low side needs its gate pulled below "
+                "ground; use an N-MOSFET there (or put this part on the high side)"
+            }
+        elif rule == "voltage":
+            how = f"{_q(channel.supply, 'V')} supply + {_q(r['voltage_value'] - channel.supply - (r['diode_vf_v'] if channel.needs_freewheel else 0), 'V')} wiring overshoot"
+            if channel.needs_freewheel:
+                how += f" + {_q(r['diode_vf_v'], 'V')} clamp diode"
+            f = {
+                "v_peak": _q(r["voltage_value"], "V"),
+                "how": how,
+                "derating": _g(conditions.voltage_derating),
+                "v_rating": _q(r["_v_rating"], "V"),
+                "limit": _q(r["voltage_limit"], "V"),
+            }
+        elif rule == "gate_drive_level":
+            case = r["drive_case"]
+            need = r["gate_min_v"]
+            dk = r["driver_kind"]
+            kinds = (
+                " or ".join(k.replace("_", "-") for k in dk.split("|")) if dk else ""
+            )
+            if case == "pin":
+                have = f"the controller gives {_q(channel.drive, 'V')}"
+            elif case == "supply_low":
+                have = f"a level shifter gives at most the {_q(channel.supply, 'V')} supply"
+            else:
+                lead = (
+                    "a microcontroller pin cannot drive a high-side N-MOSFET, and "
+                    if r["kind"] == "nmos" and r["side"] == "high"
+                    else f"the controller gives {_q(channel.drive, 'V')}, and "
+                )
+                have = (
+                    lead + f"no {kinds} gate driver in the inventory gives "
+                    f"{_q(need, 'V')}–{_q(r['vgs_limit_v'], 'V')}"
+                )
+            f = {
+                "need": _q(need, "V"),
+                "what": _DRIVE_WHAT.get(r["kind"], "Rds(on)"),
+                "have": have,
+            }
+        elif rule == "gate_overvoltage":
+            if r["drive_case"] == "driver_too_high":
+                how = "the lowest-output suitable gate driver in the inventory"
+            elif r["kind"] == "pmos" and r["side"] == "high":
+                how = (
+                    f"its gate pulled to 0 V below a {_q(channel.supply, 'V')} source, "
+                    "no Vgs clamp"
+                )
+            else:
+                how = f"the controller's {_q(channel.drive, 'V')}"
+            factor = (
+                drive.IGBT_GATE_DERATING
+                if r["kind"] == "igbt"
+                else settings.vgs_derating
+            )
+            f = {
+                "vgs": _q(r["gate_overvoltage_value"], "V"),
+                "how": how,
+                "limit": _q(r["gate_overvoltage_limit"], "V"),
+                "factor": _g(factor),
+                "vgs_max": _q(r["_vgs_max"], "V"),
+            }
+        elif rule == "threshold_cold":
+            f = {
+                "vth_cold": _q(r["vth_cold_v"], "V"),
+                "t_min": _q(conditions.ambient_min, "°C"),
+                "vth_max": _q(r["_vth_max"], "V"),
+                "vgs": _q(r["vgs_on_v"], "V"),
+                "factor": _g(drive.THRESHOLD_FACTOR),
+            }
+        elif rule == "current_continuous":
+            f = {
+                "i_dev": _q(r["current_continuous_value"], "A"),
+                "count": int(r["count"]),
+                "i_rating": _q(r["current_continuous_limit"], "A"),
+            }
+        elif rule == "current_peak":
+            _ipk, how = checks.peak_current(channel)
+            f = {
+                "i_peak": _q(r["current_peak_value"], "A"),
+                "count": int(r["count"]),
+                "how": how,
+                "limit_name": "continuous rating (no i_pulse given)"
+                if r["_pk_from_rating"]
+                else "pulsed rating",
+                "limit": _q(r["current_peak_limit"], "A"),
+            }
+        elif rule == "avalanche":
+            reason = r["_av_reason"]
+            e = _q(r["avalanche_value"], "J")
+            if reason == "igbt":
+                why = f"an IGBT is not avalanche-rated and the coil's {e} turn-off energy has nowhere else to go"
+            elif reason == "no_eas":
+                why = f"it has no avalanche rating (eas blank) for the coil's {e} turn-off energy"
+            elif reason == "pwm":
+                why = (
+                    f"at {_g(channel.pwm_frequency)} Hz PWM the coil's energy returns "
+                    "every cycle (repetitive avalanche is not allowed)"
+                )
+            else:
+                why = (
+                    f"the coil's turn-off energy {e} (V_BR ≈ {_q(r['_vbr'], 'V')}; "
+                    f"{_q(r['avalanche_exact_j'], 'J')} with the coil resistance) exceeds "
+                    f"{_g(settings.avalanche_acceptance)} × E_AS at "
+                    f"{_q(r['t_lim_c'], '°C')} = {_q(r['avalanche_limit'], 'J')}"
+                )
+            f = {"why": why, "diodes": diode_text}
+        elif rule == "switching_data":
+            f = {"reason": r["loss_reason"] or "the loss model lacks data"}
+        elif rule == "thermal_runaway":
+            if r["_r_sink"] <= r["_r_air"]:
+                how = (
+                    f"RθJC {_q(r['rth_jc_k_per_w'], 'K/W')} + best interface "
+                    f"{_q(r['_cs'], 'K/W')} on an ideal sink"
+                )
+            elif np.isfinite(r["_cs"]):
+                how = "alone in air"
+            else:
+                how = f"alone in air; no interface in the inventory fits its {r['package']}"
+            f = {
+                "p1": _q(r["p1_w_per_k"], "W"),
+                "r_best": _q(min(r["_r_sink"], r["_r_air"]), "K/W"),
+                "how": how,
+                "gain": f"{r['_gain']:.2f}",
+            }
+        elif rule == "thermal_no_option":
+            if r["_h"] <= 0:
+                detail = (
+                    f"its limit (tj_max {_q(r['tj_max_c'], '°C')} − "
+                    f"{_g(conditions.junction_margin)} K margin) is not above the hottest "
+                    f"ambient {_q(conditions.ambient_max, '°C')}"
+                )
+            else:
+                parts = []
+                if np.isfinite(r["_cs"]):
+                    parts.append(
+                        f"on an ideal sink its {_q(r['p_dev_w'], 'W')} per device "
+                        f"through RθJC {_q(r['rth_jc_k_per_w'], 'K/W')} + the best "
+                        f"interface {_q(r['_cs'], 'K/W')} is a "
+                        f"{_q(r['p_dev_w'] * r['_r_sink'], 'K')} rise"
+                    )
+                else:
+                    parts.append(
+                        f"no interface in the inventory fits its {r['package']} "
+                        "package, so it cannot go on a heatsink"
+                    )
+                if np.isfinite(r["_r_air"]):
+                    parts.append(
+                        f"alone in air (RθJA {_q(r['_r_air'], 'K/W')}) its "
+                        f"{_q(r['p_dev_w'], 'W')} rise "
+                        f"{_q(r['p_dev_w'] * r['_r_air'], 'K')}"
+                    )
+                detail = (
+                    "; ".join(parts)
+                    + f"; the budget between its limit and the hottest ambient "
+                    f"{_q(conditions.ambient_max, '°C')} is {_q(r['_h'], 'K')}"
+                )
+            f = {"t_lim": _q(r["t_lim_c"], "°C"), "detail": detail}
+        elif rule == "surge":
+            f = {
+                "rise": _q(r["surge_rise_k"], "K"),
+                "how": "ideal sink, best interface"
+                if r["_sink_better"]
+                else "alone in air",
+                "tj": _q(conditions.ambient_max + r["_rise_best_pk"], "°C"),
+                "t_lim": _q(r["t_lim_c"], "°C"),
+            }
+        else:  # pragma: no cover - every rule is handled above
+            f = {}
+        out.append(tpl.format(**f))
+    return out
+
+
+def _row_notes(t: pd.DataFrame, channel: Channel, settings: Settings) -> list[str]:
+    notes = []
+    for r in t[[c for c in _NOTE_COLUMNS if c in t]].to_dict("records"):
+        items = []
+        if r.get("drive_notes"):
+            items.append(r["drive_notes"])
+        if r["_i_warn"]:
+            items.append(
+                f"runs at {_q(r['current_continuous_value'], 'A')} per device, above "
+                f"{_g(checks.CURRENT_DERATING)} × its {_q(r['_i_rating'], 'A')} rating"
+            )
+        if r["_pk_from_rating"] and channel.peak > channel.current:
+            items.append(
+                "no pulsed rating (i_pulse): the peak was checked against i_rating"
+            )
+        if r["needs_diode"]:
+            items.append("needs a freewheel diode across the load")
+        elif r["avalanche_ok"]:
+            items.append(
+                f"may absorb the coil's {_q(r['avalanche_value'], 'J')} turn-off energy in "
+                f"avalanche (≤ {_g(settings.avalanche_acceptance)} × E_AS at "
+                f"{_q(r['t_lim_c'], '°C')} = {_q(r['avalanche_limit'], 'J')}"
+                + (f"; {_q(r['_av_p'], 'W')} on average" if r["_av_p"] > 0 else "")
+                + "); a freewheel diode is still the gentler choice"
+            )
+        if bool(r.get("runaway_no_sink", False)):
+            items.append("needs a heatsink: alone in air it runs away thermally")
+        if r.get("loss_notes"):
+            items.append(str(r["loss_notes"]))
+        notes.append("; ".join(items))
+    return notes
+
+
+_PUBLIC_DROP = (
+    "kind_side_ok",
+    "gate_drive_level_ok",
+    "gate_overvoltage_ok",
+    "threshold_cold_ok",
+    "drive_notes",
+    "drive_case",
+    "available_v",
+)
+
+
+def _finish_side(
+    t: pd.DataFrame,
+    channel: Channel,
+    conditions: Conditions,
+    settings: Settings,
+    diode_text: str,
+) -> tuple[pd.DataFrame, pd.DataFrame]:
+    """(passed, rejected) of one side's table."""
+    rule_ids = list(RULES)
+    F = np.column_stack([t[f"_fail_{r}"].to_numpy(bool) for r in rule_ids])
+    bad = F.any(axis=1)
+    first = np.where(bad, F.argmax(axis=1), -1)
+    sentences = np.full(F.shape, "", dtype=object)
+    for j, rule in enumerate(rule_ids):
+        rows = np.flatnonzero(F[:, j])
+        if rows.size:
+            sentences[rows, j] = _sentences(
+                t.iloc[rows], rule, channel, conditions, settings, diode_text
+            )
+    rej_idx = np.flatnonzero(bad)
+    rejected = pd.DataFrame(
+        {
+            "part": t["part"].to_numpy()[rej_idx],
+            "count": t["count"].to_numpy()[rej_idx],
+            "kind": t["kind"].to_numpy()[rej_idx],
+            "package": t["package"].to_numpy()[rej_idx],
+            "price": t["price"].to_numpy()[rej_idx],
+            "side": t["side"].to_numpy()[rej_idx],
+            "rule": [rule_ids[first[i]] for i in rej_idx],
+            "reason": [sentences[i, first[i]] for i in rej_idx],
+            "rules": [
+                tuple(rule_ids[j] for j in np.flatnonzero(F[i])) for i in rej_idx
+            ],
+            "reasons": [tuple(s for s in sentences[i] if s) for i in rej_idx],
+            "_first": first[rej_idx],
+        }
+    )
+    passed = t[~bad].copy()
+    passed["notes"] = _row_notes(passed, channel, settings)
+    return passed, rejected
+
+
+def _clean(passed: pd.DataFrame) -> pd.DataFrame:
+    drop = [c for c in passed.columns if c.startswith("_") or c in _PUBLIC_DROP]
+    return passed.drop(columns=drop).reset_index(drop=True)
+
+
+def _diode_text(channel: Channel, settings: Settings, dio: Screened) -> str:
+    from selector.losses import diode_requirements
+
+    need = diode_requirements(channel, settings)
+    i_min = max(need.i_avg_min, channel.current)
+    text = (
+        "no diode in the inventory fits this channel (it needs V_RRM ≥ "
+        f"{_q(need.v_rrm_min, 'V')} and I_F(AV) ≥ {_q(i_min, 'A')})"
+    )
+    if len(dio.rejected):
+        some = "; ".join(
+            f"{p}: {r}"
+            for p, r in zip(
+                dio.rejected["part"][:3], dio.rejected["reason"][:3], strict=True
+            )
+        )
+        text += f" [{some}{'; …' if len(dio.rejected) > 3 else ''}]"
+    return text
+
+
+def screen_channel(
+    inventory: Any,
+    channel: Channel,
+    conditions: Conditions,
+    settings: Settings | None = None,
+    *,
+    gate_clamp: bool = True,
+    counts: Any = None,
+    evaluate: Evaluator | None = None,
+) -> ScreenResult:
+    """Apply every rule to every (switch, parallel count) row for one channel.
+
+    Parameters
+    ----------
+    inventory : Inventory (switches, rds_points, interfaces, diodes, drivers).
+    channel : the channel; ``side`` "any" screens both sides.
+    conditions : ambient range [°C], junction_margin [K], voltage_derating,
+        max_parallel.
+    settings : engineering defaults (models.Settings).
+    gate_clamp : P-MOSFET level shifters may include a Vgs divider (see
+        :mod:`selector.drive`); False refuses a part whose gate cannot take the supply.
+    counts : parallel counts to screen (default 1..conditions.max_parallel).
+    evaluate : the evaluation function (default
+        :func:`selector.evaluate.evaluate_switches`); tests inject a simpler one.
+
+    Returns
+    -------
+    ScreenResult (see its fields). Sources: physics.md §1.3, §3.3, §4, §6.4, §9, §10.
+    """
+    settings = settings or Settings()
+    evaluate = evaluate or _default_evaluator()
+    if counts is None:
+        counts = list(range(1, int(conditions.max_parallel) + 1))
+    sides = ["low", "high"] if channel.side == "any" else [channel.side]
+    dio = diode_candidates(
+        getattr(inventory, "diodes", None), channel, settings, conditions
+    )
+    notes = _channel_notes(channel, settings, dio)
+    dtext = _diode_text(channel, settings, dio) if channel.needs_freewheel else ""
+    sw = inventory.switches
+    if sw is None or len(sw) == 0:
+        return ScreenResult(
+            channel.name,
+            pd.DataFrame(),
+            pd.DataFrame(columns=["part", "count", "side", "rule", "reason"]),
+            {r: 0 for r in RULES},
+            0,
+            dio.passed,
+            dio.rejected,
+            notes + ["the inventory has no switches"],
+        )
+    results = []
+    for side in sides:
+        t = _side_table(
+            inventory,
+            channel,
+            conditions,
+            settings,
+            side,
+            evaluate,
+            counts,
+            gate_clamp,
+            dio,
+        )
+        results.append(_finish_side(t, channel, conditions, settings, dtext))
+    if len(results) == 1:
+        passed, rejected = results[0]
+    else:
+        passed, rejected = _merge_sides(results)
+    total = len(sw) * len(list(counts))
+    funnel = {r: 0 for r in RULES}
+    for r, c in rejected["rule"].value_counts().items():
+        funnel[str(r)] = int(c)
+    rejected = rejected.drop(columns=["_first"]).reset_index(drop=True)
+    return ScreenResult(
+        channel.name,
+        _clean(passed),
+        rejected,
+        funnel,
+        total,
+        dio.passed,
+        dio.rejected,
+        notes,
+    )
+
+
+def _merge_sides(
+    results: list[tuple[pd.DataFrame, pd.DataFrame]],
+) -> tuple[pd.DataFrame, pd.DataFrame]:
+    """Side "any": pass on either side (prefer no driver IC, then low); else fail both."""
+    passed = pd.concat([p for p, _ in results], ignore_index=True)
+    if len(passed):
+        passed["_pref"] = passed["uses_driver"].astype(int) * 2 + (
+            passed["side"] == "high"
+        ).astype(int)
+        passed = (
+            passed.sort_values(["part", "count", "_pref"], kind="stable")
+            .drop_duplicates(["part", "count"], keep="first")
+            .drop(columns=["_pref"])
+        )
+    ok_keys = (
+        set(zip(passed["part"], passed["count"], strict=True)) if len(passed) else set()
+    )
+    rej = pd.concat([r for _, r in results], ignore_index=True)
+    if len(rej) == 0:
+        return passed, rej
+    keys = list(zip(rej["part"], rej["count"], strict=True))
+    rej = rej[[k not in ok_keys for k in keys]].copy()
+    rej["reasons"] = [
+        tuple(f"on the {s} side: {x}" for x in rs)
+        for s, rs in zip(rej["side"], rej["reasons"], strict=True)
+    ]
+    merged = []
+    for (_part, _count), g in rej.groupby(["part", "count"], sort=False):
+        best = g.loc[g["_first"].idxmax()].copy()
+        best["reason"] = f"on the {best['side']} side: {best['reason']}"
+        best["reasons"] = tuple(x for rs in g["reasons"] for x in rs)
+        best["rules"] = tuple(dict.fromkeys(x for rs in g["rules"] for x in rs))
+        merged.append(best)
+    if not merged:
+        return passed, rej.iloc[0:0]
+    return passed, pd.DataFrame(merged).reset_index(drop=True)
+
+
+def _channel_notes(channel: Channel, settings: Settings, dio: Screened) -> list[str]:
+    notes = []
+    ipk, how = checks.peak_current(channel)
+    if channel.load in ("lamp", "motor") or ipk > channel.current:
+        notes.append(f"start-up peak {_q(ipk, 'A')}: {how}")
+    if channel.needs_freewheel:
+        if len(dio.passed):
+            notes.append(
+                f"{len(dio.passed)} diode(s) in the inventory fit as freewheel diode "
+                "for the parts that need one"
+            )
+        else:
+            notes.append(
+                "no diode in the inventory fits this channel: every part that needs a "
+                "freewheel diode is refused (rule 'avalanche'); add a suitable diode"
+            )
+        notes.append(
+            "Caution: an inductive load switched off without a freewheel diode or a "
+            "rated clamp produces a voltage spike that can destroy the switch and start "
+            "a fire; verify the turn-off waveform on the bench"
+        )
+    if channel.supply > 60:
+        notes.append(
+            f"Caution: {_q(channel.supply, 'V')} is above the 60 V DC touch-safe range; "
+            "insulation, creepage and wiring must follow the applicable equipment "
+            "standard, local electrical codes and licensed practice"
+        )
+    return notes
+
+
+# ------------------------------------------------------------------------- explaining
+def _counts_text(counts: list[int]) -> str:
+    counts = sorted(counts)
+    if len(counts) == 1:
+        return f"{counts[0]} in parallel"
+    if counts == list(range(counts[0], counts[-1] + 1)):
+        return f"{counts[0]}–{counts[-1]} in parallel"
+    return ", ".join(str(c) for c in counts) + " in parallel"
+
+
+def explain_part(
+    inventory: Any,
+    channel: Channel,
+    conditions: Conditions,
+    settings: Settings | None,
+    part: str,
+    **kwargs: Any,
+) -> list[str]:
+    """Why a part can or cannot serve a channel, as sentences with the numbers.
+
+    One line per group of parallel counts with the same outcome: the rules it fails
+    (every reason, funnel order), or, for counts that pass, a line saying it passes
+    every rule (with its loss and thermal budget) so that only price or the board-wide
+    limits (stock, shared heatsinks, insulation) can have kept it out of a solution.
+    ``kwargs`` go to :func:`screen_channel`.
+    """
+    sw = inventory.switches
+    parts = sw["part"].astype(str).tolist() if len(sw) else []
+    if part not in parts:
+        close = difflib.get_close_matches(part, parts, n=3, cutoff=0.6)
+        hint = f"; did you mean {', '.join(repr(c) for c in close)}?" if close else ""
+        return [f"'{part}' is not in the switches table of the inventory{hint}"]
+    sub = _with_switches(inventory, (sw["part"].astype(str) == part).to_numpy())
+    res = screen_channel(sub, channel, conditions, settings, **kwargs)
+    lines: list[str] = []
+    if len(res.passed):
+        p = res.passed
+        first = p.iloc[0]
+        drv = (
+            f", with a {first['driver_kind'].replace('|', ' or ').replace('_', '-')} driver"
+            if first["driver_kind"]
+            else ""
+        )
+        lines.append(
+            f"{part} passes every rule for '{channel.name}' with "
+            f"{_counts_text(p['count'].astype(int).tolist())} ({first['side']} side, "
+            f"{first['topology']}{drv}); with {int(first['count'])} it loses "
+            f"{_q(first['p_dev_w'], 'W')} per device at its limit "
+            f"{_q(first['t_lim_c'], '°C')} and may see at most "
+            f"{_q(first['r_ja_max_k_per_w'], 'K/W')} junction to ambient. If it is not in "
+            "the chosen parts, a cheaper candidate won or the board-wide limits (stock, "
+            "shared heatsinks, insulation) ruled it out"
+        )
+    if len(res.rejected):
+        groups: dict[tuple[str, ...], list[int]] = {}
+        for rs, c in zip(res.rejected["reasons"], res.rejected["count"], strict=True):
+            groups.setdefault(tuple(rs), []).append(int(c))
+        for rs, cs in groups.items():
+            lines.append(f"{part} with {_counts_text(cs)}: " + "; ".join(rs))
+    lines.extend(res.notes)
+    return lines
