@@ -99,21 +99,27 @@ def _loss_table(
     tj,
     driver,
     driver_voltage,
+    shared=None,
 ) -> dict[str, np.ndarray]:
-    """Loss arrays of shape (C, N): every count (rows) × every switch (columns)."""
-    from .losses import switch_losses  # late import: keeps thermal usable on its own
+    """Loss arrays of shape (C, N): every count (rows) × every switch (columns).
+
+    ``shared``: a dict kept between the calls on one switch table, so that its
+    channel-independent preparation (part ids, kinds, Rds(on) look-up) is done once.
+    """
+    # late import: keeps thermal usable on its own
+    from .losses import _switch_losses
 
     c = np.asarray(counts, dtype=float)[:, None]
-    lt = switch_losses(
+    lt = _switch_losses(
         switches,
         rds_points,
         channel,
-        conditions,
         settings,
         c,
         np.asarray(tj, dtype=float)[None, :],
         driver=driver,
         driver_voltage=driver_voltage,
+        shared=shared,
     )
     shape = (c.shape[0], len(switches))
     out: dict[str, np.ndarray] = {}
@@ -225,7 +231,7 @@ def evaluate_switches(
     rth_jc = _num(sw, "rth_jc")
     rth_ja = _num(sw, "rth_ja")
     args = (sw, rds_points)
-    kw = (conditions, settings, counts, t_lim, driver, driver_voltage)
+    kw = (conditions, settings, counts, t_lim, driver, driver_voltage, {})
     lt = _loss_table(*args, channel, *kw)
     missing = np.asarray(lt["missing"], dtype=object)
 
@@ -361,6 +367,26 @@ def device_rise(p_dev, rth_jc, rth_cs, surge_rise=0.0, surge_dp=0.0) -> np.ndarr
     )
 
 
+def _empty_frame(order: tuple[str, ...]) -> pd.DataFrame:
+    return pd.DataFrame({c: pd.Series(dtype=object) for c in order})
+
+
+def _package_codes(packages: pd.Series) -> tuple[np.ndarray, pd.Index]:
+    """Codes of the upper-cased package names (-1 where blank) and their uniques.
+
+    The same as factorising ``packages.astype(str).str.upper()``, but the text is
+    converted only once per distinct name (the column repeats each switch's package).
+    """
+    raw, names = pd.factorize(packages.to_numpy(dtype=object))
+    if not all(isinstance(x, str) for x in names):  # mixed types: convert every cell
+        return pd.factorize(packages.astype(str).str.upper())
+    upper, uniques = pd.factorize(
+        pd.Series(names, dtype=object).astype(str).str.upper()
+    )
+    upper = np.append(upper, -1)  # raw code -1 (blank) stays -1
+    return upper[raw], uniques
+
+
 def _fit_items(fits: Any) -> list[str]:
     if isinstance(fits, str):
         items = [s.strip() for s in fits.replace(",", ";").split(";")]
@@ -410,10 +436,9 @@ def interface_options(
     ch. 29). The heatsink's own figure at its rise and airflow is the heatsink
     module's job.
     """
-    empty = pd.DataFrame({c: pd.Series(dtype=object) for c in INTERFACE_COLUMNS})
     if len(evaluated) == 0 or len(interfaces) == 0:
-        return empty
-    codes, uniques = pd.factorize(evaluated["package"].astype(str).str.upper())
+        return _empty_frame(INTERFACE_COLUMNS)
+    codes, uniques = _package_codes(evaluated["package"])
     lookup = {u: i for i, u in enumerate(uniques)}
     rows, which = [], []
     recs = interfaces.to_dict("records")
@@ -421,11 +446,13 @@ def interface_options(
         want = [lookup[p] for p in _fit_items(d.get("fits")) if p in lookup]
         if not want:
             continue
-        idx = np.flatnonzero(np.isin(codes, np.asarray(want)))
+        fits = np.zeros(len(uniques) + 1, dtype=bool)  # last slot: blank package
+        fits[want] = True
+        idx = np.flatnonzero(fits[codes])
         rows.append(idx)
         which.append(np.full(idx.size, j))
     if not rows:
-        return empty
+        return _empty_frame(INTERFACE_COLUMNS)
     row = np.concatenate(rows)
     j = np.concatenate(which)
 
@@ -466,12 +493,17 @@ def interface_options(
     q = q_row[row]
     rise = a_row[row] + b * rth_cs
     h = head_row[row] - rise
-    t_max = tmax_i[j]
-    h = np.where(np.isfinite(t_max), np.minimum(h, t_max - ta - b * rth_cs), h)
+    if np.isfinite(tmax_i).any():
+        t_max = tmax_i[j]
+        h = np.where(np.isfinite(t_max), np.minimum(h, t_max - ta - b * rth_cs), h)
     with np.errstate(divide="ignore", invalid="ignore"):
         r_sa = h / q
-    r_sa = np.where(q > 0, r_sa, np.where(h >= 0, np.inf, -np.inf))
-    r_sa = np.where(np.isnan(q) | np.isnan(h), np.nan, r_sa)
+    flat = ~(q > 0)  # no heat to carry: no limit (h ≥ 0) or no sink works (h < 0)
+    if flat.any():
+        r_sa[flat] = np.where(h[flat] >= 0, np.inf, -np.inf)
+    blank = np.isnan(q) | np.isnan(h)
+    if blank.any():
+        r_sa[blank] = np.nan
     return _frame(
         {
             "row": row,

@@ -323,9 +323,10 @@ class _Messages:
 
     ``add(mask, text, *values)`` records a message for the elements where ``mask`` is
     true; ``{}`` placeholders in ``text`` are filled with the element's ``values``
-    (``%.3g``). :meth:`build` returns an object array of "; "-joined texts. Formatting
-    happens only for the distinct combinations, so the cost does not grow with the
-    number of rows beyond a few vectorised passes.
+    (``%.3g`` of the value rounded to 3 significant digits). :meth:`build` returns an
+    object array of "; "-joined texts. Values are rounded only where their mask is
+    set, and formatting happens only for the distinct combinations (hash-factorised),
+    so the cost does not grow with the number of rows beyond a few vectorised passes.
     """
 
     def __init__(self, shape: tuple[int, ...]):
@@ -335,7 +336,7 @@ class _Messages:
     def add(self, mask, text: str, *values) -> None:
         mask = np.broadcast_to(np.asarray(mask, dtype=bool), self.shape)
         if mask.any():
-            vals = [np.broadcast_to(_round_sig(x), self.shape) for x in values]
+            vals = [np.broadcast_to(_f(x), self.shape) for x in values]
             self.items.append((mask, text, vals))
 
     def mask(self) -> np.ndarray:
@@ -346,41 +347,67 @@ class _Messages:
         return out
 
     def build(self) -> np.ndarray:
-        size = int(np.prod(self.shape))
         if not self.items:
-            return np.full(self.shape, "", dtype=object)
+            out = np.empty(self.shape, dtype=object)
+            out.fill("")
+            return out
+        # Each message is keyed on the smallest shape it varies over (a per-row
+        # message on (1, n), not on (counts, n)); the keys broadcast when combined.
         cols: list[np.ndarray] = []
         texts: list[list[str]] = []
         for m, text, vals in self.items:
-            flat = m.reshape(-1)
-            col = np.zeros(size, dtype=np.int64)
+            m = _compact(m)
+            vals = [_compact(x) for x in vals]
+            shape = np.broadcast_shapes(m.shape, *(x.shape for x in vals))
+            m = np.broadcast_to(m, shape)
             if not vals:
-                col[flat] = 1
+                col = m.astype(np.int64)
                 texts.append(["", text])
             else:
-                idx = np.flatnonzero(flat)
-                sub = [x.reshape(-1)[idx] for x in vals]
-                key = sub[0] if len(sub) == 1 else pd.MultiIndex.from_arrays(sub)
-                codes, uniq = pd.factorize(key, use_na_sentinel=False)
-                col[idx] = codes + 1
-                tuples = uniq if len(sub) > 1 else [(u,) for u in uniq]
+                col = np.zeros(shape, dtype=np.int64)
+                idx = np.flatnonzero(m)
+                # distinct value tuples among the flagged elements (NaN is a value)
+                codes = np.zeros(idx.size, dtype=np.int64)
+                uniqs = []
+                for x in vals:
+                    x = np.ravel(np.broadcast_to(x, shape))[idx]
+                    c, u = pd.factorize(_round_sig(x), use_na_sentinel=False)
+                    codes = codes * len(u) + c
+                    uniqs.append(u)
+                codes, ukey = pd.factorize(codes)
+                col.reshape(-1)[idx] = codes + 1
+                digits = []
+                for u in reversed(uniqs):
+                    digits.append(u[ukey % len(u)])
+                    ukey = ukey // len(u)
+                tuples = zip(*digits[::-1], strict=True)
                 texts.append(
                     [""] + [text.format(*(f"{x:.3g}" for x in t)) for t in tuples]
                 )
             cols.append(col)
         radix = [len(t) for t in texts]
-        if float(np.prod(np.asarray(radix, dtype=float))) < 2.0**62:
-            key = np.zeros(size, dtype=np.int64)
+        n_keys = float(np.prod(np.asarray(radix, dtype=float)))
+        if n_keys < 2.0**62:
+            key = np.zeros((1,) * len(self.shape), dtype=np.int64)
             for col, r in zip(cols, radix, strict=True):
                 key = key * r + col
-            ukey, inv = np.unique(key, return_inverse=True)
+            if n_keys <= max(4 * key.size, 1 << 16):  # small key space: a table
+                seen = np.zeros(int(n_keys), dtype=bool)
+                seen[key] = True
+                ukey = np.flatnonzero(seen)
+                inv = (np.cumsum(seen) - 1)[key]
+            else:  # hash; the order of the combinations is irrelevant
+                inv, ukey = pd.factorize(key.reshape(-1))
+                inv = inv.reshape(key.shape)
             digits = []
             for r in reversed(radix):
                 digits.append(ukey % r)
                 ukey = ukey // r
             combos = np.stack(digits[::-1], axis=1)
         else:  # pragma: no cover - needs an extreme number of distinct messages
-            combos, inv = np.unique(np.stack(cols, axis=1), axis=0, return_inverse=True)
+            full = [np.broadcast_to(c, self.shape).reshape(-1) for c in cols]
+            combos, inv = np.unique(np.stack(full, axis=1), axis=0, return_inverse=True)
+            inv = np.asarray(inv).reshape(self.shape)
         joined = np.array(
             [
                 "; ".join(texts[j][c] for j, c in enumerate(row) if c)
@@ -388,10 +415,106 @@ class _Messages:
             ],
             dtype=object,
         )
-        return joined[np.asarray(inv).reshape(-1)].reshape(self.shape)
+        if inv.shape == self.shape:
+            return joined[inv]
+        out = np.empty(self.shape, dtype=object)
+        out[...] = joined[inv]  # broadcasts the key's shape to the full one
+        return out
+
+
+def _compact(a: np.ndarray) -> np.ndarray:
+    """View of ``a`` of length 1 along every axis it was broadcast on (stride 0)."""
+    return a[
+        tuple(
+            slice(0, 1) if st == 0 and sz > 1 else slice(None)
+            for st, sz in zip(a.strides, a.shape, strict=True)
+        )
+    ]
 
 
 # ----------------------------------------------------------------------------- Rds(on)
+
+
+class _RdsLookup:
+    """Spec points of a set of queried parts, indexed once for repeated look-ups.
+
+    Part ids (as text, like ``astype(str)``) of the points and of the queries are
+    factorised together; each point becomes one int64 key ``code·W + rank`` where
+    ``rank`` (1..K) is the position of its |V_GS| among the K distinct levels, so the
+    keys sort by part, then by V_GS. Duplicate (part, V_GS) points keep their largest
+    Rds(on). A query (part, level) is then one :func:`numpy.searchsorted`. Points with a
+    blank Rds(on) or V_GS, or a blank part id, are ignored.
+    """
+
+    def __init__(self, rds_points: pd.DataFrame | None, parts):
+        if isinstance(parts, pd.Series) and isinstance(parts.dtype, pd.StringDtype):
+            query = parts.reset_index(drop=True)  # text already: no conversion
+        else:
+            query = pd.Series(np.asarray(parts, dtype=object).reshape(-1))
+        self.n = len(query)
+        self.keys = np.empty(0, dtype=np.int64)
+        if self.n == 0 or rds_points is None or len(rds_points) == 0:
+            self.query = np.full(self.n, -1, dtype=np.int64)
+            return
+        names = rds_points["part"].astype(str).reset_index(drop=True)
+        if not isinstance(query.dtype, pd.StringDtype):
+            query = query.astype(str)
+        codes, uniques = pd.factorize(pd.concat([names, query], ignore_index=True))
+        codes = codes.astype(np.int64, copy=False)
+        self.n_codes = len(uniques)
+        self.query = codes[len(names) :]
+        code = codes[: len(names)]
+        vgs = np.abs(_col(rds_points, "vgs"))
+        rds = _col(rds_points, "rds_on")
+        keep = (code >= 0) & np.isfinite(rds) & ~np.isnan(vgs)
+        if not keep.any():
+            return
+        code, vgs, rds = code[keep], vgs[keep], rds[keep]
+        level_code, levels = pd.factorize(vgs)
+        order = np.argsort(levels, kind="stable")
+        rank = np.empty(order.size, dtype=np.int64)
+        rank[order] = np.arange(1, order.size + 1)
+        self.levels = np.asarray(levels, dtype=float)[order]  # sorted |V_GS| [V]
+        self.width = order.size + 1
+        key = code * self.width + rank[level_code]
+        order = np.argsort(key)
+        key = key[order]
+        start = np.flatnonzero(np.concatenate(([True], key[1:] != key[:-1])))
+        self.keys = key[start]
+        self.rds = np.maximum.reduceat(rds[order], start)
+
+    def at_drive(self, vgs) -> tuple[np.ndarray, np.ndarray]:
+        """(rds25, vgs_used) at drive level(s) ``vgs`` [V]; see :func:`rds_at_drive`."""
+        v = np.abs(np.broadcast_to(_f(vgs), (self.n,)))
+        rds = np.full(self.n, np.nan)
+        used = np.full(self.n, np.nan)
+        if self.keys.size == 0:
+            return rds, used
+        with np.errstate(invalid="ignore"):
+            reach = np.where(np.isfinite(v), v + _VGS_TOL, -np.inf)
+        # highest level index ≤ the drive, per query: levels[0..r-1] qualify
+        r = np.searchsorted(self.levels, reach, side="right")
+        pos = np.searchsorted(self.keys, self.query * self.width + r, side="right") - 1
+        at = np.maximum(pos, 0)
+        hit = (
+            (self.query >= 0) & (pos >= 0) & (self.keys[at] // self.width == self.query)
+        )
+        rds[hit] = self.rds[at[hit]]
+        used[hit] = self.levels[self.keys[at[hit]] % self.width - 1]
+        return rds, used
+
+    def lowest(self) -> np.ndarray:
+        """Lowest listed |V_GS| per queried part [V]; see :func:`rds_lowest_vgs`."""
+        out = np.full(self.n, np.nan)
+        if self.keys.size == 0:
+            return out
+        owner = self.keys // self.width
+        first = np.concatenate(([True], owner[1:] != owner[:-1]))
+        low = np.full(self.n_codes, np.nan)
+        low[owner[first]] = self.levels[self.keys[first] % self.width - 1]
+        ok = self.query >= 0
+        out[ok] = low[self.query[ok]]
+        return out
 
 
 def rds_at_drive(rds_points: pd.DataFrame, parts, vgs) -> tuple[np.ndarray, np.ndarray]:
@@ -423,68 +546,20 @@ def rds_at_drive(rds_points: pd.DataFrame, parts, vgs) -> tuple[np.ndarray, np.n
     -----
     Rule of physics reference §1.3 [b]: datasheets guarantee R_DS(on),max only at the
     listed V_GS points; V_GS(th) says nothing about full conduction. A drive level within
-    1 µV of a point counts as reaching it (float noise). Vectorised with
-    :func:`pandas.merge_asof` (backward search by part), no loop over parts.
+    1 µV of a point counts as reaching it (float noise). Vectorised: part ids are
+    factorised once and the points sorted by (part, V_GS), so each look-up is a
+    :func:`numpy.searchsorted` (no loop over parts).
     """
-    parts = np.asarray(parts, dtype=object).reshape(-1)
-    n = parts.size
-    v = np.abs(np.broadcast_to(_f(vgs), (n,)))
-    rds = np.full(n, np.nan)
-    used = np.full(n, np.nan)
-    if n == 0 or rds_points is None or len(rds_points) == 0:
-        return rds, used
-    pts = pd.DataFrame(
-        {
-            "part": rds_points["part"].astype(str).to_numpy(dtype=object),
-            "vgs_pt": np.abs(_col(rds_points, "vgs")),
-            "rds_on": _col(rds_points, "rds_on"),
-        }
-    )
-    pts = pts[np.isfinite(pts["vgs_pt"]) & np.isfinite(pts["rds_on"])]
-    if pts.empty:
-        return rds, used
-    pts = pts.groupby(["part", "vgs_pt"], as_index=False, sort=False)["rds_on"].max()
-    pts = pts.sort_values("vgs_pt", kind="mergesort")
-    q = pd.DataFrame(
-        {
-            "part": pd.Series(parts).astype(str).to_numpy(dtype=object),
-            "vgs_q": np.where(np.isfinite(v), v + _VGS_TOL, -1.0),
-            "_row": np.arange(n),
-        }
-    ).sort_values("vgs_q", kind="mergesort")
-    m = pd.merge_asof(
-        q,
-        pts,
-        left_on="vgs_q",
-        right_on="vgs_pt",
-        by="part",
-        direction="backward",
-        allow_exact_matches=True,
-    )
-    rows = m["_row"].to_numpy()
-    rds[rows] = m["rds_on"].to_numpy(dtype=float, na_value=np.nan)
-    used[rows] = m["vgs_pt"].to_numpy(dtype=float, na_value=np.nan)
-    return rds, used
+    return _RdsLookup(rds_points, parts).at_drive(vgs)
 
 
 def rds_lowest_vgs(rds_points: pd.DataFrame, parts) -> np.ndarray:
     """Lowest listed |V_GS| spec point per part [V] (NaN where the part has none).
 
     Used in messages ("needs 4.5 V for its guaranteed Rds(on)"), physics §1.3 [b].
+    Points with a blank Rds(on) are ignored.
     """
-    parts = np.asarray(parts, dtype=object).reshape(-1)
-    if rds_points is None or len(rds_points) == 0:
-        return np.full(parts.size, np.nan)
-    pts = pd.DataFrame(
-        {
-            "part": rds_points["part"].astype(str).to_numpy(dtype=object),
-            "vgs": np.abs(_col(rds_points, "vgs")),
-            "ok": np.isfinite(_col(rds_points, "rds_on")),
-        }
-    )
-    low = pts[pts["ok"]].groupby("part")["vgs"].min()
-    idx = pd.Index(pd.Series(parts).astype(str))
-    return low.reindex(idx).to_numpy(dtype=float, na_value=np.nan)
+    return _RdsLookup(rds_points, parts).lowest()
 
 
 def rds_alpha(rds_hot_ratio, t_hot: float = T_RDS_HOT) -> np.ndarray:
@@ -1260,6 +1335,52 @@ def switch_losses(
     Linear coefficients: p0 = P_c25 + P_sw25 + P_oss, p1 = α·P_c25 (+ TC_E·P_sw25 for
     IGBTs), so P(Tj) = p0 + p1·(Tj − 25) for Tj ≥ 25 °C, exactly what ``p_dev`` is.
     """
+    return _switch_losses(
+        switches,
+        rds_points,
+        channel,
+        settings,
+        count,
+        tj,
+        driver=driver,
+        driver_voltage=driver_voltage,
+    )
+
+
+class _SwitchRows:
+    """Per-row data of a switch table that no channel changes (part ids, kind, the
+    Rds(on) look-up), prepared once and shared by the loss evaluations of one table."""
+
+    def __init__(self, switches: pd.DataFrame, rds_points: pd.DataFrame | None):
+        n = len(switches)
+        if "part" in switches:
+            part_col = switches["part"]
+            self.part = part_col.to_numpy(dtype=object)
+        else:
+            self.part = part_col = np.full(n, "", dtype=object)
+        if "kind" in switches:
+            kind = switches["kind"].astype(str).str.strip().str.lower()
+            self.is_mos = kind.isin(_MOSFET_KINDS).to_numpy(dtype=bool)
+            self.is_igbt = kind.eq("igbt").to_numpy(dtype=bool, na_value=False)
+        else:
+            self.is_mos = self.is_igbt = np.zeros(n, dtype=bool)
+        self.rds = _RdsLookup(rds_points, part_col)
+
+
+def _switch_losses(
+    switches: pd.DataFrame,
+    rds_points: pd.DataFrame,
+    channel: Channel,
+    settings: Settings,
+    count=1,
+    tj=25.0,
+    *,
+    driver: bool = False,
+    driver_voltage: float | None = None,
+    shared: dict | None = None,
+) -> LossTable:
+    """:func:`switch_losses`; ``shared`` (a dict kept by the caller between calls on
+    the same switch table and points) holds the :class:`_SwitchRows` of the table."""
     n = len(switches)
     count_a = _f(count)
     tj_a = _f(tj)
@@ -1270,18 +1391,12 @@ def switch_losses(
     def bc(a):
         return np.broadcast_to(a, shape)
 
-    if "part" in switches:
-        part = switches["part"].to_numpy(dtype=object)
-    else:
-        part = np.full(n, "", dtype=object)
-    if "kind" in switches:
-        kind = (
-            switches["kind"].astype(str).str.strip().str.lower().to_numpy(dtype=object)
-        )
-    else:
-        kind = np.full(n, "", dtype=object)
-    is_mos = np.isin(kind, _MOSFET_KINDS)
-    is_igbt = kind == "igbt"
+    rows = shared.get("rows") if shared is not None else None
+    if rows is None:
+        rows = _SwitchRows(switches, rds_points)
+        if shared is not None:
+            shared["rows"] = rows
+    part, is_mos, is_igbt = rows.part, rows.is_mos, rows.is_igbt
     known = is_mos | is_igbt
 
     use_driver = bool(driver) or driver_voltage is not None
@@ -1316,7 +1431,7 @@ def switch_losses(
     alpha_igbt = (IGBT_VCE_HOT_RATIO - 1.0) / (T_RDS_HOT - T_REF)
     alpha = np.where(is_igbt, alpha_igbt, np.where(is_mos, alpha_mos, np.nan))
 
-    rds25, vgs_used = rds_at_drive(rds_points, part, v_drv)
+    rds25, vgs_used = rows.rds.at_drive(v_drv)
     rds25 = np.where(is_mos, rds25, np.nan)
     vgs_used = np.where(is_mos, vgs_used, np.nan)
 
@@ -1510,7 +1625,7 @@ def switch_losses(
     )
 
     # ---- conduction reasons and flags
-    low = rds_lowest_vgs(rds_points, part)
+    low = rows.rds.lowest()
     missing.add(is_mos & ~np.isfinite(low), "no Rds(on) spec point")
     missing.add(
         is_mos & np.isfinite(low) & ~np.isfinite(rds25),
