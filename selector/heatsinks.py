@@ -1272,7 +1272,8 @@ def rth_at_airflow(
         return val, note
     if x < lv[0]:
         slope = (lr[1] - lr[0]) / (lv[1] - lv[0])
-        val = float(math.exp(lr[0] + slope * (x - lv[0])))
+        # the caller caps the result at the still-air value; keep exp finite here
+        val = float(math.exp(min(lr[0] + slope * (x - lv[0]), 700.0)))
         return (
             val,
             f"airflow below the lowest point ({v[0]:g} m/s): extrapolated with the first slope",
