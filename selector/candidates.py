@@ -1,0 +1,1307 @@
+"""Per-channel candidate combinations for the integer program.
+
+A *candidate* is one way to build one copy of one channel: a switch part, how many of it
+in parallel, the thermal interface under each device and how the devices are cooled
+(their own heatsink, free air, or the shared sink of a heatsink group). The optimizer
+(:mod:`selector.optimize`) picks exactly one candidate per channel; everything it needs
+to know about a candidate is one row of the *candidate table* below.
+
+Candidate table (one DataFrame for all channels, RangeIndex 0..N-1)
+-------------------------------------------------------------------
+
+==================  =======  ===========================================================
+column              type     meaning
+==================  =======  ===========================================================
+channel             str      channel name (as in the design)
+switch              str      switch part id
+count               int      devices in parallel in one copy (n)
+interface           str      interface part under every device ("" = none, free air)
+heatsink            str      the channel's own heatsink part ("" = none: air or group)
+mount               str      "sink" (own sink), "air" (no sink, RθJA) or "group"
+                             (the heatsink group's shared sink, chosen by the model)
+package             str      switch package (sink and interface fit)
+kind, side, tab     str      switch kind, the side it sits on, what its tab is tied to
+topology            str      drive topology named by the screening rules
+needs_diode         bool     the copy needs a freewheel diode (chosen by the model)
+driver_kind         str      gate-driver kind the topology needs ("" = none;
+                             "high_side|isolated" = either)
+driver_need         str      the optimizer's key for the driver options (kind and
+                             the v_out window, e.g. "low_side@4.5-14"; "" = use
+                             driver_kind)
+insulating          bool     the interface insulates the tab from the sink
+tab_node            str      circuit node the tab sits on ("" = tab isolated in the
+                             package); see "Tab nodes" below
+node_per_copy       bool     the node is different in every copy of the channel
+cost                float    price of one copy: n·switch + n·interface + own sink
+p_dev_w             float    [W] die loss of one device at T_lim and ambient_max
+p_total_w           float    [W] n·p_dev_w, heat of one copy
+dev_rise_k          float    [K] p_dev·(RθJC + RθCS) + surge rise (0 for air)
+h_k                 float    [K] sink-rise budget T_lim − Ta,max − dev_rise (NaN: air)
+margin_k            float    [K] thermal margin at the limit losses; for "group" rows
+                             the budget h_k (the model subtracts the shared sink's rise)
+t_lim_c             float    [°C] junction limit tj_max − junction_margin
+rth_jc_k_per_w      float    [K/W]
+rth_cs_k_per_w      float    [K/W] interface (NaN for air)
+rth_sa_k_per_w      float    [K/W] own sink at its operating rise (NaN otherwise)
+==================  =======  ===========================================================
+
+Resources of one copy: ``count`` switches, ``count`` interfaces (when given) and one
+heatsink (``mount == "sink"``). The optimizer multiplies them by the channel's
+``quantity``.
+
+Tab nodes (electrical isolation, physics.md §7.3)
+-------------------------------------------------
+A device whose tab is tied to a circuit node (drain, collector or source) puts that node
+on the sink unless its interface insulates. Node labels: ``"gnd"`` (source tab of a
+low-side N-MOSFET), ``"rail:<V>"`` (drain/collector on the supply rail of a high-side
+N-MOSFET/IGBT, source of a high-side P-MOSFET), and ``"<channel>:load"`` (the switched
+load node; different in every copy). On one shared sink the uninsulated devices may hold
+one node only. Parallel devices of one copy share their node, so a channel alone on its
+own sink never needs an insulating interface (the sink is then live; the notes say so).
+"""
+
+from __future__ import annotations
+
+import numpy as np
+import pandas as pd
+
+CANDIDATE_COLUMNS: dict[str, str] = {
+    "channel": "str",
+    "switch": "str",
+    "count": "int",
+    "interface": "str",
+    "heatsink": "str",
+    "mount": "str",
+    "package": "str",
+    "kind": "str",
+    "side": "str",
+    "tab": "str",
+    "topology": "str",
+    "needs_diode": "bool",
+    "driver_kind": "str",
+    "driver_need": "str",
+    "insulating": "bool",
+    "tab_node": "str",
+    "node_per_copy": "bool",
+    "cost": "float",
+    "p_dev_w": "float",
+    "p_total_w": "float",
+    "dev_rise_k": "float",
+    "h_k": "float",
+    "margin_k": "float",
+    "t_lim_c": "float",
+    "rth_jc_k_per_w": "float",
+    "rth_cs_k_per_w": "float",
+    "rth_sa_k_per_w": "float",
+}
+
+MOUNTS = ("sink", "air", "group")
+
+#: Defaults used when a hand-built table leaves a column out.
+_DEFAULTS = {
+    "str": "",
+    "int": 1,
+    "bool": False,
+    "float": np.nan,
+}
+
+
+def candidate_frame(rows: list[dict] | pd.DataFrame) -> pd.DataFrame:
+    """A candidate table with every column of :data:`CANDIDATE_COLUMNS`.
+
+    Missing columns get their default ("" / 1 / False / NaN); ``p_total_w`` defaults to
+    ``count·p_dev_w``. The index is reset to 0..N-1 (the optimizer's candidate ids).
+    """
+    df = (
+        pd.DataFrame(rows).copy() if not isinstance(rows, pd.DataFrame) else rows.copy()
+    )
+    for col, kind in CANDIDATE_COLUMNS.items():
+        if col not in df.columns:
+            if col == "p_total_w" and "p_dev_w" in df.columns and "count" in df.columns:
+                df[col] = df["count"].astype(float) * df["p_dev_w"].astype(float)
+            else:
+                df[col] = _DEFAULTS[kind]
+    for col, kind in CANDIDATE_COLUMNS.items():
+        if kind == "str":
+            df[col] = df[col].fillna("").astype(str)
+        elif kind == "int":
+            df[col] = df[col].astype(int)
+        elif kind == "bool":
+            df[col] = df[col].fillna(False).astype(bool)
+        else:
+            df[col] = df[col].astype(float)
+    return df.reset_index(drop=True)
+
+
+# ======================================================================================
+# building the candidates from the screened rows
+# ======================================================================================
+#
+# Pruning (what is kept, and why the optimum survives)
+# ----------------------------------------------------
+# * Interfaces: per package and per insulating class, an interface is dropped when two
+#   others are no dearer, no worse in RθCS and no lower in t_max (2 Pareto layers kept,
+#   stock 0 dropped).
+# * Sinks: per package (own sinks) or per group (shared sinks), a sink is dropped when
+#   two others are no dearer, carry at least as many devices, fit every package it fits
+#   and take at least as much power at every rise of the design's range (2 layers;
+#   stock 0 dropped; an own sink needs stock ≥ the channel's quantity).
+# * Own sink of an ungrouped candidate: for every (switch, count, interface) the
+#   cheapest adequate sinks are found by one vectorised comparison against the
+#   price-sorted sink frontier (adequate: fits the package, positions ≥ count, and
+#   sink_max_power at the candidate's budget h ≥ count·p_dev); the first
+#   ``sink_alternatives`` (3) are kept.
+# * Ungrouped channel: within each class of accessory needs (diode, driver), candidates
+#   are taken in order of cost (larger margin first at equal cost), at most
+#   ``per_part`` (3) per switch part, until at least ``keep_parts`` (5) switch parts are
+#   in and one *safe* candidate is in: one whose switch, interface and sink have no
+#   stock limit or a stock at least the whole board's demand. Any dearer candidate can
+#   be swapped for that safe one without breaking a stock limit, so the cheapest cost is
+#   never lost; the other kept parts serve the ranked alternatives.
+# * Grouped channel: candidates that fit no sink of the group, or overload the group's
+#   largest sink on their own, are dropped; the rest are sorted into Pareto layers on
+#   (cost, heat on the shared sink, −budget h) within each class of package, count,
+#   uninsulated tab node and accessory needs; the first ``group_layers`` (6) layers are
+#   kept. A candidate in a later layer is dominated (no cheaper, no more heat, no less
+#   budget) by at least one candidate of every earlier layer, so it can only be needed
+#   when six better ones are all out of stock.
+
+import math  # noqa: E402
+from dataclasses import dataclass, field  # noqa: E402
+from typing import Any  # noqa: E402
+
+from selector import evaluate as _evaluate  # noqa: E402
+from selector import heatsinks as _heatsinks  # noqa: E402
+
+
+@dataclass(frozen=True)
+class PruneSettings:
+    """How many alternatives the pruning keeps (see the comment block above)."""
+
+    keep_parts: int = 5
+    per_part: int = 3
+    group_layers: int = 2
+    ranking_slack: float = 0.10  # cost window slack for ranked alternatives (× UB)
+    sink_alternatives: int = 3
+    interface_layers: int = 2
+    sink_layers: int = 2
+    chunk: int = 50_000  # options compared against the sinks at once
+
+
+def pareto_layers(values: np.ndarray, max_layers: int, block: int = 512) -> np.ndarray:
+    """Non-dominated sorting: layer 1, 2, … of every item; ``max_layers + 1`` beyond.
+
+    ``values`` is (N, d) with *lower is better* in every column (NaN counts as worst).
+    Item j dominates i when ``values[j] ≤ values[i]`` in every column (ties broken by
+    order, so one of two equal items dominates the other). Layer 1 is the set no item
+    dominates; layer L is that set once layers 1..L−1 are removed. Items are sorted
+    lexicographically, so only earlier items can dominate; each pass compares blocks
+    against the non-dominated set found so far (numpy broadcasting).
+    """
+    v = np.asarray(values, dtype=float)
+    if v.ndim == 1:
+        v = v[:, None]
+    n = len(v)
+    layer = np.full(n, max_layers + 1, dtype=int)
+    if n == 0:
+        return layer
+    v = np.where(np.isnan(v), np.inf, v)
+    order = np.lexsort(v.T[::-1])
+    vs = v[order]
+    remaining = np.arange(n)
+    for lay in range(1, max_layers + 1):
+        if remaining.size == 0:
+            break
+        nd = _nondominated_sorted(vs[remaining], block)
+        layer[order[remaining[nd]]] = lay
+        remaining = remaining[~nd]
+    return layer
+
+
+def _nondominated_sorted(v: np.ndarray, block: int) -> np.ndarray:
+    """Mask of rows of lexicographically sorted ``v`` not dominated by an earlier row."""
+    n, d = v.shape
+    keep = np.zeros(n, dtype=bool)
+    sky = np.empty((0, d))
+    for start in range(0, n, block):
+        x = v[start : start + block]
+        if len(sky):
+            dom = np.zeros(len(x), dtype=bool)
+            for s0 in range(0, len(sky), 4096):
+                s = sky[s0 : s0 + 4096]
+                dom |= (s[None, :, :] <= x[:, None, :]).all(axis=2).any(axis=1)
+        else:
+            dom = np.zeros(len(x), dtype=bool)
+        le = (x[None, :, :] <= x[:, None, :]).all(axis=2)
+        dom |= np.tril(le, k=-1).any(axis=1)
+        keep[start : start + len(x)] = ~dom
+        sky = np.vstack([sky, x[~dom]])
+    return keep
+
+
+# --------------------------------------------------------------------------- helpers
+
+
+def local_front(keys: np.ndarray, values: np.ndarray, chunk: int = 4096) -> np.ndarray:
+    """Mask of the items no other item *with the same key* dominates (lower is better).
+
+    Used per switch part: among the builds of one part (counts × interfaces) only the
+    non-dominated ones stay, so that a chain of dominating builds never repeats a part
+    (see :func:`pareto_layers`). Vectorised by padding each key's items to a block.
+    """
+    v = np.asarray(values, dtype=float)
+    if v.ndim == 1:
+        v = v[:, None]
+    n, d = v.shape
+    keep = np.ones(n, dtype=bool)
+    if n == 0:
+        return keep
+    v = np.where(np.isnan(v), np.inf, v)
+    codes, _ = pd.factorize(pd.Series(np.asarray(keys, dtype=object)))
+    order = np.lexsort(tuple(v.T[::-1]) + (codes,))
+    c_sorted = codes[order]
+    starts = np.flatnonzero(np.r_[True, c_sorted[1:] != c_sorted[:-1]])
+    sizes = np.diff(np.r_[starts, n])
+    pos = np.arange(n) - np.repeat(starts, sizes)
+    m = int(sizes.max())
+    if m == 1:
+        return keep
+    for g0 in range(0, len(starts), chunk):
+        g1 = min(g0 + chunk, len(starts))
+        lo, hi = starts[g0], (starts[g1] if g1 < len(starts) else n)
+        idx = order[lo:hi]
+        gi = np.repeat(np.arange(g1 - g0), sizes[g0:g1])
+        block = np.full((g1 - g0, m, d), np.inf)
+        block[gi, pos[lo:hi]] = v[idx]
+        valid = np.zeros((g1 - g0, m), dtype=bool)
+        valid[gi, pos[lo:hi]] = True
+        # le[g, i, j]: item j (earlier in the sort, valid) dominates item i
+        le = (block[:, None, :, :] <= block[:, :, None, :]).all(axis=3)
+        le &= valid[:, None, :]
+        le &= np.tril(np.ones((m, m), dtype=bool), k=-1)[None]
+        dominated = le.any(axis=2)
+        keep[idx] = ~dominated[gi, pos[lo:hi]]
+    return keep
+
+
+def fit_items(fits: Any) -> tuple[str, ...]:
+    """Packages of a ``fits`` cell (tuple or ``;``-separated text), upper case."""
+    if isinstance(fits, str):
+        items = [s.strip() for s in fits.replace(",", ";").split(";")]
+    elif fits is None or (isinstance(fits, float) and math.isnan(fits)):
+        items = []
+    else:
+        items = [str(s).strip() for s in fits]
+    return tuple(s.upper() for s in items if s)
+
+
+def _num(df: pd.DataFrame, col: str, default: float = np.nan) -> np.ndarray:
+    if col not in df.columns:
+        return np.full(len(df), default, dtype=float)
+    return pd.to_numeric(df[col], errors="coerce").to_numpy(dtype=float)
+
+
+def _text(df: pd.DataFrame, col: str) -> np.ndarray:
+    if col not in df.columns:
+        return np.full(len(df), "", dtype=object)
+    v = df[col].to_numpy(dtype=object)
+    return np.array(
+        [
+            "" if (x is None or (isinstance(x, float) and math.isnan(x))) else str(x)
+            for x in v
+        ],
+        dtype=object,
+    )
+
+
+def stock_allows(stock: np.ndarray, units) -> np.ndarray:
+    """True where the stock (NaN = unlimited) covers ``units``."""
+    stock = np.asarray(stock, dtype=float)
+    return np.isnan(stock) | (stock >= np.asarray(units, dtype=float) - 1e-9)
+
+
+def tab_nodes(
+    kind, side, tab, channel: str, supply: float
+) -> tuple[np.ndarray, np.ndarray]:
+    """Circuit node of each device's tab, and whether it differs per copy.
+
+    physics.md §7.3 (common practice): the tab of TO-220/TO-247/D2PAK is the drain
+    (collector). Low side: drain = the switched load node, source = ground. High-side
+    N-MOSFET/IGBT: drain = supply rail, source = load node. High-side P-MOSFET: source =
+    supply rail, drain = load node. An unknown tab is taken as drain (conservative); an
+    isolated tab has no node.
+
+    Returns
+    -------
+    labels : "" (isolated), "gnd", "rail:<V>V" or "<channel>:load".
+    per_copy : True for the load node (every copy has its own).
+    """
+    kind = np.asarray(kind, dtype=object)
+    side = np.asarray(side, dtype=object)
+    tab = np.array(
+        [
+            str(t).lower() if isinstance(t, str) and t else "drain"
+            for t in np.asarray(tab, dtype=object)
+        ],
+        dtype=object,
+    )
+    n = len(tab)
+    load = f"{channel}:load"
+    rail = f"rail:{float(supply):g}V"
+    drainish = np.isin(tab, ["drain", "collector"])
+    sourceish = np.isin(tab, ["source", "emitter"])
+    high = side == "high"
+    pmos = kind == "pmos"
+    out = np.full(n, "", dtype=object)
+    # drain tab
+    out[drainish & ~high] = load
+    out[drainish & high & pmos] = load
+    out[drainish & high & ~pmos] = rail
+    # source tab
+    out[sourceish & ~high] = "gnd"
+    out[sourceish & high & ~pmos] = load
+    out[sourceish & high & pmos] = rail
+    return out, out == load
+
+
+def interface_frontier(interfaces: pd.DataFrame, layers: int = 2) -> pd.DataFrame:
+    """Interfaces worth considering, with ``fits`` cut to the packages where they are.
+
+    Per package and insulating class: Pareto layers on (price, rth_cs, −t_max); stock 0
+    and a missing rth_cs are out.
+    """
+    if interfaces is None or len(interfaces) == 0:
+        return pd.DataFrame(
+            columns=["part", "price", "stock", "fits", "rth_cs", "insulating"]
+        )
+    df = interfaces.reset_index(drop=True).copy()
+    price = _num(df, "price")
+    rcs = _num(df, "rth_cs")
+    stock = _num(df, "stock")
+    tmax = _num(df, "t_max")
+    ins = (
+        df["insulating"].fillna(False).astype(bool).to_numpy()
+        if "insulating" in df
+        else np.zeros(len(df), bool)
+    )
+    ok = np.isfinite(rcs) & (stock != 0)
+    fits = [fit_items(f) for f in df["fits"]] if "fits" in df else [()] * len(df)
+    keep_fits: list[list[str]] = [[] for _ in range(len(df))]
+    packages = sorted({p for f in fits for p in f})
+    for p in packages:
+        for cls in (False, True):
+            idx = np.array(
+                [i for i in range(len(df)) if ok[i] and ins[i] == cls and p in fits[i]],
+                dtype=int,
+            )
+            if idx.size == 0:
+                continue
+            vals = np.column_stack(
+                [
+                    price[idx],
+                    rcs[idx],
+                    -np.where(np.isnan(tmax[idx]), np.inf, tmax[idx]),
+                ]
+            )
+            lay = pareto_layers(vals, layers)
+            for i in idx[lay <= layers]:
+                keep_fits[i].append(p)
+    df["fits"] = [tuple(f) for f in keep_fits]
+    df["insulating"] = ins
+    return df[[bool(f) for f in keep_fits]].reset_index(drop=True)
+
+
+def sink_frontier(
+    table: pd.DataFrame,
+    packages: list[str],
+    rise_lo: float,
+    rise_hi: float,
+    *,
+    layers: int = 2,
+    min_stock: int = 1,
+) -> np.ndarray:
+    """Row positions of the sinks worth considering for ``packages``, cheapest first.
+
+    A sink is dropped when ``layers`` others are no dearer, have at least its positions,
+    fit every one of ``packages`` it fits and take at least its power at every rise of a
+    geometric grid over [rise_lo, rise_hi] (power laws keep their order between the
+    ends of the grid). Sinks fitting none of the packages, or with stock below
+    ``min_stock``, are out.
+    """
+    if table is None or len(table) == 0 or not packages:
+        return np.zeros(0, dtype=int)
+    price = _num(table, "price")
+    stock = _num(table, "stock")
+    pos = _num(table, "positions", 1.0)
+    fits = [fit_items(f) for f in table["fits"]]
+    fmat = np.array([[p in f for p in packages] for f in fits], dtype=bool).reshape(
+        len(table), len(packages)
+    )
+    ok = fmat.any(axis=1) & stock_allows(stock, min_stock)
+    idx = np.flatnonzero(ok)
+    if idx.size == 0:
+        return idx
+    lo = max(float(rise_lo), 0.5)
+    hi = max(float(rise_hi), lo * 1.01)
+    grid = np.geomspace(lo, hi, 6)
+    cap = _heatsinks.sink_max_power(table.iloc[idx], grid)
+    cap = np.where(np.isfinite(cap), cap, 1e12)
+    vals = np.column_stack(
+        [price[idx], -np.nan_to_num(pos[idx], nan=1.0), -cap, -fmat[idx].astype(float)]
+    )
+    lay = pareto_layers(vals, layers)
+    kept = idx[lay <= layers]
+    return kept[np.argsort(price[kept], kind="stable")]
+
+
+#: Candidate-stage rule id -> sentence (rows counted once, under the first that applies).
+CANDIDATE_RULES: dict[str, str] = {
+    "stock": "not enough in stock for every copy and parallel device",
+    "interface": "every interface that fits is out of stock or leaves no sink budget",
+    "no_interface": "no thermal interface fits its package for the shared heatsink",
+    "no_heatsink": "too hot in free air, and no heatsink in stock keeps it cool enough",
+    "group_sink": "no sink of its heatsink group fits it or carries its heat",
+}
+
+
+@dataclass
+class ChannelCandidates:
+    """Candidates of one channel, and what the candidate stage dropped.
+
+    ``dropped``: :data:`CANDIDATE_RULES` id -> count of screened (switch, count) rows, or
+    (switch, count, interface) options, that could not be built; ``pruned``: candidates
+    left out as dominated (see "Pruning"). ``passed`` are the screening's rows
+    (``table["row"]`` indexes them).
+    """
+
+    channel: str
+    table: pd.DataFrame
+    dropped: dict[str, int] = field(default_factory=dict)
+    passed: pd.DataFrame = field(default_factory=pd.DataFrame)
+    pruned: int = 0
+
+
+@dataclass
+class CandidateSet:
+    """Everything :func:`selector.optimize.solve` needs, plus what the report needs."""
+
+    problem: Any  # selector.optimize.SelectionProblem
+    channels: dict[str, ChannelCandidates]
+    sink_table: pd.DataFrame
+    interfaces: pd.DataFrame
+    group_sinks: dict[str, pd.DataFrame] = field(default_factory=dict)
+    #: group -> (its members' builds that some sink carries on its own, the sinks that
+    #: fit them): what an explanation of a group that cannot share one sink needs
+    group_pool: dict[str, tuple[pd.DataFrame, pd.DataFrame]] = field(
+        default_factory=dict
+    )
+
+
+def _count(d: dict[str, int], key: str, n: int) -> None:
+    if n:
+        d[key] = d.get(key, 0) + int(n)
+
+
+def _driver_need(kind: np.ndarray, vmin: np.ndarray, vmax: np.ndarray) -> np.ndarray:
+    out = np.full(len(kind), "", dtype=object)
+    for i, k in enumerate(kind):
+        if k:
+            lo = "" if not np.isfinite(vmin[i]) else f"{vmin[i]:g}"
+            hi = "" if not np.isfinite(vmax[i]) else f"{vmax[i]:g}"
+            out[i] = f"{k}@{lo}-{hi}"
+    return out
+
+
+def _base_rows(channel, passed: pd.DataFrame, quantity: int) -> pd.DataFrame:
+    """The screened rows with the columns every candidate carries."""
+    n = len(passed)
+    kind = _text(passed, "kind")
+    side = _text(passed, "side")
+    if not np.any(side != ""):
+        side = np.full(
+            n, channel.side if channel.side != "any" else "low", dtype=object
+        )
+    nodes, per_copy = tab_nodes(
+        kind, side, _text(passed, "tab"), channel.name, channel.supply
+    )
+    dk = _text(passed, "driver_kind")
+    base = pd.DataFrame(
+        {
+            "channel": channel.name,
+            "row": np.arange(n),
+            "switch": _text(passed, "part"),
+            "count": passed["count"].to_numpy(dtype=int),
+            "package": np.array(
+                [str(p).upper() for p in _text(passed, "package")], dtype=object
+            ),
+            "kind": kind,
+            "side": side,
+            "tab": _text(passed, "tab"),
+            "topology": _text(passed, "topology"),
+            "needs_diode": passed["needs_diode"].fillna(False).astype(bool).to_numpy()
+            if "needs_diode" in passed
+            else np.zeros(n, bool),
+            "driver_kind": dk,
+            "driver_need": _driver_need(
+                dk, _num(passed, "driver_v_min"), _num(passed, "driver_v_max")
+            ),
+            "tab_node": nodes,
+            "node_per_copy": per_copy,
+            "switch_price": _num(passed, "price"),
+            "switch_stock": _num(passed, "stock"),
+            "p_dev_w": _num(passed, "p_dev_w"),
+            "t_lim_c": _num(passed, "t_lim_c"),
+            "rth_jc_k_per_w": _num(passed, "rth_jc_k_per_w"),
+            "rth_ja_k_per_w": _num(passed, "rth_ja_k_per_w"),
+            "surge_rise_k": np.nan_to_num(_num(passed, "surge_rise_k"), nan=0.0),
+            "surge_dp_w": np.nan_to_num(_num(passed, "surge_dp_w"), nan=0.0),
+            "tj_no_sink_c": _num(passed, "tj_no_sink_c"),
+            "tj_no_sink_peak_c": _num(passed, "tj_no_sink_peak_c")
+            if "tj_no_sink_peak_c" in passed
+            else _num(passed, "tj_no_sink_c"),
+            "runaway_no_sink": passed["runaway_no_sink"]
+            .fillna(False)
+            .astype(bool)
+            .to_numpy()
+            if "runaway_no_sink" in passed
+            else np.zeros(n, bool),
+        }
+    )
+    base["p_total_w"] = base["count"] * base["p_dev_w"]
+    return base
+
+
+def _air_rows(base: pd.DataFrame) -> pd.DataFrame:
+    """Each device alone in free air with its rth_ja (surge included)."""
+    tj = base["tj_no_sink_peak_c"].to_numpy(float)
+    ok = (
+        np.isfinite(tj)
+        & (tj <= base["t_lim_c"].to_numpy(float) + 1e-9)
+        & ~base["runaway_no_sink"].to_numpy(bool)
+    )
+    air = base[ok].copy()
+    air["mount"] = "air"
+    air["interface"] = ""
+    air["heatsink"] = ""
+    air["insulating"] = False
+    air["tab_node"] = ""  # alone in air: no shared metal
+    air["node_per_copy"] = False
+    air["cost"] = air["count"] * air["switch_price"]
+    air["dev_rise_k"] = 0.0
+    air["h_k"] = np.nan
+    air["margin_k"] = air["t_lim_c"] - air["tj_no_sink_peak_c"]
+    air["rth_cs_k_per_w"] = np.nan
+    air["rth_sa_k_per_w"] = np.nan
+    air["interface_stock"] = np.nan
+    air["sink_stock"] = np.nan
+    return air
+
+
+def _interface_rows(
+    base: pd.DataFrame,
+    passed: pd.DataFrame,
+    interfaces: pd.DataFrame,
+    conditions,
+    quantity: int,
+) -> tuple[pd.DataFrame, int]:
+    """(switch, count) × every interface that fits, with the sink budget h."""
+    if len(interfaces) == 0 or len(base) == 0:
+        return base.iloc[0:0].assign(interface="", insulating=False), 0
+    io = _evaluate.interface_options(
+        passed.reset_index(drop=True), interfaces, conditions
+    )
+    if len(io) == 0:
+        return base.iloc[0:0].assign(interface="", insulating=False), 0
+    rows = io["row"].to_numpy(dtype=int)
+    opt = base.iloc[rows].reset_index(drop=True)
+    istock = dict(
+        zip(interfaces["part"].astype(str), _num(interfaces, "stock"), strict=True)
+    )
+    opt["interface"] = io["interface"].astype(str).to_numpy()
+    opt["interface_price"] = io["interface_price"].to_numpy(float)
+    opt["interface_stock"] = np.array(
+        [istock.get(p, np.nan) for p in opt["interface"]], dtype=float
+    )
+    opt["insulating"] = io["insulating"].to_numpy(bool)
+    opt["rth_cs_k_per_w"] = io["rth_cs_k_per_w"].to_numpy(float)
+    opt["dev_rise_k"] = io["dev_rise_k"].to_numpy(float)
+    opt["h_k"] = io["h_k"].to_numpy(float)
+    opt["base_cost"] = opt["count"] * (opt["switch_price"] + opt["interface_price"])
+    good = (opt["h_k"].to_numpy(float) > 0) & stock_allows(
+        opt["interface_stock"], quantity * opt["count"]
+    )
+    return opt[good].reset_index(drop=True), int((~good).sum())
+
+
+def _own_sink_rows(
+    opt: pd.DataFrame,
+    table: pd.DataFrame,
+    frontier: dict[str, np.ndarray],
+    alternatives: int,
+    chunk: int,
+    quantity: int = 1,
+) -> tuple[pd.DataFrame, int]:
+    """The cheapest adequate own sinks of every option (vectorised, per package)."""
+    out = []
+    unmatched = 0
+    price = _num(table, "price")
+    pos = _num(table, "positions", 1.0)
+    stock = _num(table, "stock")
+    for pkg, grp in opt.groupby("package", sort=False):
+        f = frontier.get(pkg, np.zeros(0, dtype=int))
+        f = f[stock_allows(stock[f], quantity)]
+        if f.size == 0:
+            unmatched += len(grp)
+            continue
+        ft = table.iloc[f]
+        g = grp.reset_index(drop=True)
+        for s0 in range(0, len(g), chunk):
+            part = g.iloc[s0 : s0 + chunk]
+            h = part["h_k"].to_numpy(float)
+            q = part["p_total_w"].to_numpy(float)
+            n = part["count"].to_numpy(float)
+            cap = _heatsinks.sink_max_power(ft, h)  # (S, M)
+            ok = (
+                (cap >= q[None, :]) & (pos[f][:, None] >= n[None, :]) & (h[None, :] > 0)
+            )
+            rank = np.cumsum(ok, axis=0)
+            sel = ok & (rank <= alternatives)
+            si, mi = np.nonzero(sel)
+            unmatched += int((~ok.any(axis=0)).sum())
+            if si.size == 0:
+                continue
+            rows = part.iloc[mi].reset_index(drop=True)
+            sinks = f[si]
+            st = table.iloc[sinks]
+            rise = _heatsinks.sink_rise(
+                st, rows["p_total_w"].to_numpy(float), outer=False
+            )
+            rows["heatsink"] = table["part"].astype(str).to_numpy()[sinks]
+            rows["sink_stock"] = _num(table, "stock")[sinks]
+            rows["mount"] = "sink"
+            rows["cost"] = rows["base_cost"].to_numpy(float) + price[sinks]
+            rows["margin_k"] = rows["h_k"].to_numpy(float) - rise
+            with np.errstate(divide="ignore", invalid="ignore"):
+                rows["rth_sa_k_per_w"] = _heatsinks.sink_rth(
+                    st, np.maximum(rise, 1e-6), outer=False
+                )
+            out.append(rows)
+    if not out:
+        return opt.iloc[0:0].assign(
+            heatsink="",
+            mount="sink",
+            cost=0.0,
+            margin_k=0.0,
+            rth_sa_k_per_w=0.0,
+            sink_stock=np.nan,
+        ), unmatched
+    return pd.concat(out, ignore_index=True), unmatched
+
+
+def _prune_ungrouped(
+    cand: pd.DataFrame, prune: PruneSettings, board_demand: dict[str, float]
+) -> pd.DataFrame:
+    """The cost-order rule for an ungrouped channel (see the comment block above)."""
+    if len(cand) == 0:
+        return cand
+    cand = cand.sort_values(
+        ["cost", "margin_k"], ascending=[True, False], kind="stable"
+    ).reset_index(drop=True)
+    safe = (
+        stock_allows(cand["switch_stock"], board_demand["switches"])
+        & (
+            cand["interface"].eq("").to_numpy()
+            | stock_allows(cand["interface_stock"], board_demand["interfaces"])
+        )
+        & (
+            cand["heatsink"].eq("").to_numpy()
+            | stock_allows(cand["sink_stock"], board_demand["heatsinks"])
+        )
+    )
+    keep = np.zeros(len(cand), dtype=bool)
+    klass = cand["needs_diode"].astype(str) + "/" + cand["driver_need"].astype(str)
+    for _, idx in cand.groupby(klass, sort=False).indices.items():
+        idx = np.sort(idx)
+        parts = cand["switch"].to_numpy()[idx]
+        rank_in_part = pd.Series(parts).groupby(parts).cumcount().to_numpy()
+        first_of_part = rank_in_part == 0
+        distinct = np.cumsum(first_of_part)
+        seen_safe = np.cumsum(safe[idx]) > 0
+        done = (distinct >= prune.keep_parts) & seen_safe
+        stop = int(np.argmax(done)) if done.any() else len(idx) - 1
+        sel = idx[: stop + 1][rank_in_part[: stop + 1] < prune.per_part]
+        keep[sel] = True
+    return cand[keep].reset_index(drop=True)
+
+
+def channel_candidates(
+    channel,
+    conditions,
+    passed: pd.DataFrame,
+    *,
+    interfaces: pd.DataFrame,
+    sink_table: pd.DataFrame,
+    own_frontier: dict[str, np.ndarray],
+    prune: PruneSettings,
+    board_demand: dict[str, float],
+) -> ChannelCandidates:
+    """Candidates of one channel from its screened rows (grouped: without the sink).
+
+    Parameters
+    ----------
+    channel : Channel; ``heatsink_group`` decides grouped or not, ``quantity`` the copies.
+    conditions : Conditions (ambient_max for the budgets).
+    passed : the screening's passed rows (``ScreenResult.passed``).
+    interfaces : the interface frontier (:func:`interface_frontier`).
+    sink_table : :func:`selector.heatsinks.sink_operating_table` of the inventory.
+    own_frontier : package -> sink rows (:func:`sink_frontier`) for own sinks.
+    prune : :class:`PruneSettings`.
+    board_demand : table -> units the whole board could need (for the *safe* test).
+    """
+    dropped: dict[str, int] = {}
+    q = int(channel.quantity)
+    if passed is None or len(passed) == 0:
+        return ChannelCandidates(channel.name, candidate_frame([]), dropped, passed)
+    base = _base_rows(channel, passed, q)
+    enough = stock_allows(base["switch_stock"], q * base["count"])
+    _count(
+        dropped,
+        "stock",
+        int((~enough).sum()),
+    )
+    keep_rows = np.flatnonzero(enough)
+    base = base.iloc[keep_rows].reset_index(drop=True)
+    sub_passed = passed.reset_index(drop=True).iloc[keep_rows].reset_index(drop=True)
+    opts, bad_if = _interface_rows(base, sub_passed, interfaces, conditions, q)
+    _count(dropped, "interface", bad_if)
+    all_rows = set(base["row"].tolist())
+    pruned = 0
+    if channel.heatsink_group:
+        table = opts.copy()
+        table["mount"] = "group"
+        table["heatsink"] = ""
+        table["cost"] = table["base_cost"]
+        table["margin_k"] = table["h_k"]
+        table["rth_sa_k_per_w"] = np.nan
+        table["sink_stock"] = np.nan
+        lost = all_rows - set(table["row"].tolist())
+        _count(
+            dropped,
+            "no_interface",
+            len(lost),
+        )
+    else:
+        sinks, _unmatched = _own_sink_rows(
+            opts, sink_table, own_frontier, prune.sink_alternatives, prune.chunk, q
+        )
+        air = _air_rows(base)
+        table = pd.concat([sinks, air], ignore_index=True)
+        lost = all_rows - set(table["row"].tolist())
+        _count(
+            dropped,
+            "no_heatsink",
+            len(lost),
+        )
+        n_before = len(table)
+        table = _prune_ungrouped(table, prune, board_demand)
+        pruned = n_before - len(table)
+    return ChannelCandidates(
+        channel.name,
+        candidate_frame(table),
+        dropped,
+        passed.reset_index(drop=True),
+        pruned,
+    )
+
+
+def _fit_matrix(sinks: pd.DataFrame, packages) -> np.ndarray:
+    """(S, M) bool: sink s fits the package of item m (vectorised over package codes)."""
+    pk = np.asarray([str(p).upper() for p in packages], dtype=object)
+    codes, uniq = pd.factorize(pd.Series(pk, dtype=object))
+    fits = [fit_items(f) for f in sinks["fits"]]
+    table = np.array([[u in f for u in uniq] for f in fits], dtype=bool).reshape(
+        len(sinks), len(uniq)
+    )
+    if len(uniq) == 0:
+        return np.zeros((len(sinks), len(pk)), dtype=bool)
+    return table[:, codes]
+
+
+def _group_pmax(
+    rows: pd.DataFrame, table: pd.DataFrame, sinks: np.ndarray
+) -> np.ndarray:
+    """[W] (len(rows), len(sinks)): sink_max_power at each row's budget, 0 where the sink
+    does not fit the row's package or the budget is ≤ 0."""
+    if len(rows) == 0 or sinks.size == 0:
+        return np.zeros((len(rows), sinks.size))
+    st = table.iloc[sinks]
+    h = rows["h_k"].to_numpy(float)
+    hp = np.where(h > 0, h, 0.0)
+    cap = _heatsinks.sink_max_power(st, hp)  # (S, M)
+    ok = _fit_matrix(st, rows["package"]) & (h[None, :] > 0)
+    cap = np.where(ok, np.where(np.isfinite(cap), cap, 1e12), 0.0)
+    return cap.T
+
+
+def _staircase(cost: np.ndarray, better: np.ndarray) -> np.ndarray:
+    """Items that improve ``better`` (larger is better) over every cheaper item."""
+    order = np.argsort(cost, kind="stable")
+    b = better[order]
+    prev = np.maximum.accumulate(np.concatenate([[-np.inf], b[:-1]]))
+    out = np.zeros(len(cost), dtype=bool)
+    out[order[b > prev]] = True
+    return out
+
+
+def _group_upper_bound(
+    rows: pd.DataFrame,
+    members: list[str],
+    cost_safe: np.ndarray,
+    heat: np.ndarray,
+    dev: np.ndarray,
+    usable: np.ndarray,
+    table: pd.DataFrame,
+    sinks: np.ndarray,
+    sink_price: np.ndarray,
+    sink_pos: np.ndarray,
+    n_grid: int = 40,
+    per_member: int = 300,
+) -> float:
+    """Cost of one feasible build of the group from *safe* parts, or inf.
+
+    Every member takes a candidate whose tab does not touch the sink (insulated or
+    isolated), whose parts and accessories have stock for the whole board, on a sink
+    with such stock: whatever the other channels use, this build stays feasible, so
+    the group's part of an optimal board never costs more. Search: for each sink and
+    each heat level T of a grid, every member takes its cheapest candidate that
+    stands T on that sink; the build is feasible when the heat adds up to ≤ T and the
+    devices fit the positions.
+    """
+    if sinks.size == 0:
+        return math.inf
+    chan = rows["channel"].to_numpy()
+    picks = []
+    for m in members:
+        idx = np.flatnonzero((chan == m) & usable & np.isfinite(cost_safe))
+        if idx.size == 0:
+            return math.inf
+        c = cost_safe[idx]
+        keep = np.zeros(idx.size, dtype=bool)
+        keep[np.argsort(c, kind="stable")[:per_member]] = True
+        keep |= _staircase(c, rows["h_k"].to_numpy(float)[idx])
+        keep |= _staircase(c, -heat[idx])
+        picks.append(idx[keep])
+    pms = [_group_pmax(rows.iloc[ix], table, sinks) for ix in picks]  # (n_c, S)
+    lo = max(sum(float(np.min(heat[ix])) for ix in picks), 1e-9)
+    hi = max(float(max(np.max(p) for p in pms)), lo * 1.001)
+    grid = np.geomspace(lo, hi, n_grid)
+    total = np.broadcast_to(sink_price[:, None], (sinks.size, n_grid)).copy()
+    q = np.zeros((sinks.size, n_grid))
+    d = np.zeros((sinks.size, n_grid))
+    for ix, pm in zip(picks, pms, strict=True):
+        ok = pm[:, :, None] >= grid[None, None, :]  # (n, S, T)
+        cc = np.where(ok, cost_safe[ix][:, None, None], np.inf)
+        j = np.argmin(cc, axis=0)  # (S, T)
+        best = np.take_along_axis(cc, j[None], axis=0)[0]
+        total += best
+        q += np.where(np.isfinite(best), heat[ix][j], np.inf)
+        d += np.where(np.isfinite(best), dev[ix][j], np.inf)
+    feas = np.isfinite(total) & (q <= grid[None, :] + 1e-9) & (d <= sink_pos[:, None])
+    return float(np.min(total[feas])) if feas.any() else math.inf
+
+
+def _reduce_group(
+    rows: pd.DataFrame,
+    members: list[str],
+    quantity: dict[str, int],
+    table: pd.DataFrame,
+    sinks: np.ndarray,
+    eff_lo: np.ndarray,
+    eff_safe: np.ndarray,
+    safe_sink: np.ndarray,
+    prune: PruneSettings,
+) -> tuple[np.ndarray, np.ndarray, np.ndarray, float]:
+    """(kept rows, rejected rows, kept sinks, upper bound) of one heatsink group.
+
+    Rejected: no sink of the group fits the row or carries its heat and devices on its
+    own (or its copies would put several live nodes on the sink); the other rows not
+    kept are dominated or outside the cost window (pruned).
+
+    1. Cost window (exact for the cheapest cost): with UB the cost of a safe build
+       (:func:`_group_upper_bound`) and LB_c the cheapest candidate of member c, a
+       candidate of c costing more than UB − Σ_{c'≠c} LB_c' − (cheapest sink), or a
+       sink costing more than UB − Σ LB_c, cannot be part of an optimal board; a slack
+       of ``ranking_slack``·UB is added so that near-optimal alternatives survive.
+    2. A candidate that no sink of the group fits, or that overloads every sink (heat
+       or positions) on its own, is out.
+    3. Dominance on (cost, heat, −budget, devices, uninsulated tab) within each class
+       of package and accessory needs: first the builds of a switch part that another
+       build of the same part dominates are dropped; then the first ``group_layers``
+       Pareto layers are kept. A dropped build is dominated by builds of at least
+       ``group_layers`` other switch parts (a chain of dominating builds never repeats
+       a part), so it is needed only when all of those parts are out of stock.
+    """
+    q = rows["channel"].map(quantity).to_numpy(dtype=float)
+    chan = rows["channel"].to_numpy()
+    heat = q * rows["p_total_w"].to_numpy(float)
+    dev = q * rows["count"].to_numpy(float)
+    touching = (rows["tab_node"].astype(str).to_numpy() != "") & ~rows[
+        "insulating"
+    ].to_numpy(bool)
+    copies_clash = touching & rows["node_per_copy"].to_numpy(bool) & (q > 1)
+    h = rows["h_k"].to_numpy(float)
+    usable = (h > 0) & ~copies_clash
+    price = _num(table, "price")[sinks] if sinks.size else np.zeros(0)
+    pos = _num(table, "positions", 1.0)[sinks] if sinks.size else np.zeros(0)
+    cost_lo = q * eff_lo
+    cost_safe = q * eff_safe
+    lbc = {}
+    for m in members:
+        sel = (chan == m) & usable & np.isfinite(cost_lo)
+        lbc[m] = float(np.min(cost_lo[sel])) if sel.any() else math.inf
+    ub = math.inf
+    ss = sinks[safe_sink[sinks]] if sinks.size else sinks
+    sp = price[safe_sink[sinks]] if sinks.size else price
+    spos = pos[safe_sink[sinks]] if sinks.size else pos
+    # every tab insulated; or one member uninsulated (a single node on the sink)
+    for live in [None, *members]:
+        allowed = ~touching | ((chan == live) & ~copies_clash)
+        ub = min(
+            ub,
+            _group_upper_bound(
+                rows,
+                members,
+                np.where(allowed, cost_safe, np.inf),
+                heat,
+                dev,
+                usable,
+                table,
+                ss,
+                sp,
+                spos,
+            ),
+        )
+    window = np.ones(len(rows), dtype=bool)
+    sink_ok = np.ones(sinks.size, dtype=bool)
+    if math.isfinite(ub) and all(math.isfinite(v) for v in lbc.values()):
+        slack = prune.ranking_slack * ub + 1e-9
+        lb_sum = sum(lbc.values())
+        min_price = float(np.min(price)) if price.size else 0.0
+        limit = np.array([ub - (lb_sum - lbc[c]) - min_price + slack for c in chan])
+        window = cost_lo <= limit
+        sink_ok = price <= ub - lb_sum + slack
+    kept_sinks = sinks[sink_ok]
+    cand_idx = np.flatnonzero(window & usable)
+    possible = np.zeros(len(rows), dtype=bool)
+    if cand_idx.size and kept_sinks.size:
+        pm = _group_pmax(rows.iloc[cand_idx], table, kept_sinks)
+        alone = (pm >= heat[cand_idx, None] - 1e-12) & (pm > 0)
+        alone &= pos[sink_ok][None, :] >= dev[cand_idx, None]
+        possible[cand_idx[alone.any(axis=1)]] = True
+    keep = np.zeros(len(rows), dtype=bool)
+    idx_possible = np.flatnonzero(possible)
+    if idx_possible.size:
+        sub = rows.iloc[idx_possible]
+        klass = (
+            sub["channel"].astype(str)
+            + "|"
+            + sub["package"].astype(str)
+            + "|"
+            + sub["needs_diode"].astype(str)
+            + "|"
+            + sub["driver_need"].astype(str)
+        ).to_numpy()
+        vals_all = np.column_stack([cost_lo, heat, -h, dev, touching.astype(float)])
+        # builds of one part that another build of the same part dominates go first,
+        # so that the layers below count distinct parts
+        own = local_front(
+            klass + "|" + sub["switch"].astype(str).to_numpy(), vals_all[idx_possible]
+        )
+        for _, local in pd.Series(klass).groupby(klass, sort=False).indices.items():
+            ids = idx_possible[local[own[local]]]
+            lay = pareto_layers(vals_all[ids], prune.group_layers)
+            keep[ids[lay <= prune.group_layers]] = True
+    # 4. per-sink bound: on sink s every member c needs Pmax(k, s) ≥ its own heat plus
+    #    the least heat the others can bring, so the group costs at least
+    #    LB(s) = price_s + Σ_c LB_c(s); a sink with LB(s) > UB + slack is out, and a
+    #    candidate is kept only on a sink where price_s + cost_k + Σ_{c'≠c} LB_c'(s)
+    #    ≤ UB + slack (exact relaxation: it ignores only the coupling it bounds).
+    kidx = np.flatnonzero(keep)
+    if kidx.size and kept_sinks.size:
+        pm = _group_pmax(rows.iloc[kidx], table, kept_sinks)  # (K, S)
+        kpos = _num(table, "positions", 1.0)[kept_sinks]
+        kprice = _num(table, "price")[kept_sinks]
+        kc = chan[kidx]
+        kh, kd, kcost = heat[kidx], dev[kidx], cost_lo[kidx]
+        alone = (pm >= kh[:, None]) & (pm > 0) & (kpos[None, :] >= kd[:, None])
+        minheat = {}
+        mindev = {}
+        for m in members:
+            sel = kc == m
+            minheat[m] = np.min(
+                np.where(alone[sel], kh[sel, None], np.inf), axis=0, initial=np.inf
+            )
+            mindev[m] = np.min(
+                np.where(alone[sel], kd[sel, None], np.inf), axis=0, initial=np.inf
+            )
+
+        def others(values: dict[str, np.ndarray]) -> np.ndarray:
+            """(K, S): for each kept row, the sum over the other members."""
+            per_m = {
+                m: sum(
+                    (values[o] for o in members if o != m), np.zeros(kept_sinks.size)
+                )
+                for m in members
+            }
+            return np.stack([per_m[c] for c in kc])
+
+        other_h = others(minheat)
+        other_d = others(mindev)
+        ok = (
+            alone
+            & (pm >= kh[:, None] + other_h)
+            & (kpos[None, :] >= kd[:, None] + other_d)
+        )
+        lbs = {}
+        for m in members:
+            sel = kc == m
+            lbs[m] = np.min(
+                np.where(ok[sel], kcost[sel, None], np.inf), axis=0, initial=np.inf
+            )
+        lb_all = sum(lbs.values()) + kprice
+        if math.isfinite(ub):
+            slack = prune.ranking_slack * ub + 1e-9
+            sink_useful = lb_all <= ub + slack
+            other_lb = others(lbs) + kprice[None, :]
+            useful = (
+                ok & sink_useful[None, :] & (other_lb + kcost[:, None] <= ub + slack)
+            )
+        else:
+            sink_useful = np.isfinite(lb_all)
+            useful = ok & sink_useful[None, :]
+        drop = ~useful.any(axis=1)
+        keep[kidx[drop]] = False
+        kept_sinks = kept_sinks[sink_useful & useful.any(axis=0)]
+    rejected = ~usable | (window & ~possible)
+    return keep, rejected, kept_sinks, ub
+
+
+def build_selection(
+    inventory, design, screens: dict, settings=None, prune: PruneSettings | None = None
+) -> CandidateSet:
+    """Candidates of every channel and the :class:`selector.optimize.SelectionProblem`.
+
+    Parameters
+    ----------
+    inventory : Inventory (switches, heatsinks, interfaces, diodes, drivers, sink_airflow).
+    design : Design (conditions, channels).
+    screens : channel name -> :class:`selector.screening.ScreenResult`.
+    settings : engineering defaults (unused here; the screening used them).
+    prune : :class:`PruneSettings`.
+    """
+    from selector.optimize import GroupSinks, SelectionProblem
+    from selector.screening import driver_candidates
+
+    prune = prune or PruneSettings()
+    cond = design.conditions
+    sink_table = (
+        _heatsinks.sink_operating_table(
+            inventory.heatsinks,
+            getattr(inventory, "sink_airflow", None),
+            cond.airflow,
+            cond.heatsink_derating,
+        )
+        if len(inventory.heatsinks)
+        else pd.DataFrame(columns=list(_heatsinks.TABLE_COLUMNS))
+    )
+    itf = interface_frontier(inventory.interfaces, prune.interface_layers)
+    channels = list(design.channels)
+    groups = design.groups()
+    n_dev = sum(int(c.quantity) * int(cond.max_parallel) for c in channels)
+    board_demand = {
+        "switches": float(n_dev),
+        "interfaces": float(n_dev),
+        "heatsinks": float(sum(int(c.quantity) for c in channels) + len(groups)),
+    }
+    packages: set[str] = set()
+    t_lim_hi = cond.ambient_max + 1.0
+    for c in channels:
+        sc = screens.get(c.name)
+        if sc is not None and len(sc.passed):
+            packages |= {str(p).upper() for p in sc.passed["package"]}
+            t_lim_hi = max(t_lim_hi, float(np.nanmax(_num(sc.passed, "t_lim_c"))))
+    rise_hi = max(t_lim_hi - cond.ambient_max, 2.0)
+    own_frontier = {
+        p: sink_frontier(sink_table, [p], 1.0, rise_hi, layers=prune.sink_layers)
+        for p in sorted(packages)
+    }
+    per: dict[str, ChannelCandidates] = {}
+    for c in channels:
+        sc = screens.get(c.name)
+        passed = sc.passed if sc is not None else pd.DataFrame()
+        per[c.name] = channel_candidates(
+            c,
+            cond,
+            passed,
+            interfaces=itf,
+            sink_table=sink_table,
+            own_frontier=own_frontier,
+            prune=prune,
+            board_demand=board_demand,
+        )
+    quantity = {c.name: int(c.quantity) for c in channels}
+    enforce = {"diode"} | ({"driver"} if len(inventory.drivers) else set())
+
+    # accessory options per channel and need, with their cheapest and *safe* prices
+    copies = float(sum(quantity.values()))
+    options: dict[tuple[str, str, str], pd.DataFrame] = {}
+    for c in channels:
+        t = per[c.name].table
+        if len(t) == 0:
+            continue
+        sc = screens.get(c.name)
+        if t["needs_diode"].any() and sc is not None and len(sc.diodes):
+            options[(c.name, "diode", "freewheel")] = sc.diodes
+        if "driver" in enforce:
+            for need in sorted(set(t["driver_need"]) - {""}):
+                kind, window = need.split("@", 1)
+                lo, hi = window.split("-", 1) if "-" in window else ("", "")
+                row = {
+                    "driver_kind": kind,
+                    "driver_v_min": float(lo) if lo else np.nan,
+                    "driver_v_max": float(hi) if hi else np.nan,
+                }
+                ok = driver_candidates(inventory.drivers, row, c).passed
+                if len(ok):
+                    options[(c.name, "driver", need)] = ok
+
+    price_cache: dict[tuple[str, str, str, bool], float] = {}
+
+    def acc_price(c: str, role: str, need: str, safe: bool) -> float:
+        key = (c, role, need, safe)
+        if key in price_cache:
+            return price_cache[key]
+        o = options.get((c, role, need))
+        if o is None or len(o) == 0:
+            price_cache[key] = math.inf
+            return math.inf
+        pr = _num(o, "price")
+        if safe:
+            pr = pr[stock_allows(_num(o, "stock"), copies)]
+        price_cache[key] = float(np.nanmin(pr)) if pr.size else math.inf
+        return price_cache[key]
+
+    def eff_costs(t: pd.DataFrame) -> tuple[np.ndarray, np.ndarray]:
+        lo = t["cost"].to_numpy(float).copy()
+        safe = lo.copy()
+        keys = pd.DataFrame(
+            {
+                "c": t["channel"].astype(str).to_numpy(),
+                "d": t["needs_diode"].to_numpy(bool),
+                "n": t["driver_need"].astype(str).to_numpy(),
+            }
+        )
+        for (c, d, n), idx in keys.groupby(["c", "d", "n"], sort=False).indices.items():
+            add_lo = add_safe = 0.0
+            if d:
+                add_lo += acc_price(c, "diode", "freewheel", False)
+                add_safe += acc_price(c, "diode", "freewheel", True)
+            if n and "driver" in enforce:
+                add_lo += acc_price(c, "driver", n, False)
+                add_safe += acc_price(c, "driver", n, True)
+            lo[idx] += add_lo
+            safe[idx] += add_safe
+        parts_safe = stock_allows(t["switch_stock"], board_demand["switches"]) & (
+            (t["interface"].astype(str) == "").to_numpy()
+            | stock_allows(t["interface_stock"], board_demand["interfaces"])
+        )
+        return lo, np.where(parts_safe, safe, np.inf)
+
+    # groups: shared-sink frontier, cost window, impossible and dominated rows out
+    group_frontier: dict[str, np.ndarray] = {}
+    pool: dict[str, tuple[pd.DataFrame, pd.DataFrame]] = {}
+    safe_sink = stock_allows(_num(sink_table, "stock"), board_demand["heatsinks"])
+    for g, members in groups.items():
+        rows = pd.concat([per[m].table for m in members], ignore_index=True)
+        pk = sorted({str(p) for p in rows["package"]}) if len(rows) else []
+        gf = sink_frontier(sink_table, pk, 1.0, rise_hi, layers=prune.sink_layers)
+        if len(rows) == 0:
+            group_frontier[g] = gf
+            continue
+        lo, safe = eff_costs(rows)
+        sinks_all = sink_table.iloc[gf].reset_index(drop=True)
+        keep, rejected, gf, _ub = _reduce_group(
+            rows, list(members), quantity, sink_table, gf, lo, safe, safe_sink, prune
+        )
+        pool[g] = (rows[~rejected].reset_index(drop=True), sinks_all)
+        group_frontier[g] = gf
+        for m in members:
+            mask = (rows["channel"] == m).to_numpy()
+            _count(per[m].dropped, "group_sink", int((mask & rejected).sum()))
+            per[m].pruned += int((mask & ~rejected & ~keep).sum())
+            per[m].table = candidate_frame(rows[mask & keep])
+
+    table = (
+        candidate_frame(
+            pd.concat([per[c.name].table for c in channels], ignore_index=True)
+        )
+        if channels
+        else candidate_frame([])
+    )
+    gs: dict[str, GroupSinks] = {}
+    group_sinks: dict[str, pd.DataFrame] = {}
+    for g, members in groups.items():
+        gf = group_frontier[g]
+        rows_idx = np.flatnonzero(table["channel"].isin(members).to_numpy())
+        pm = _group_pmax(table.iloc[rows_idx], sink_table, gf)
+        gs[g] = GroupSinks(
+            g, sink_table["part"].astype(str).to_numpy()[gf].tolist(), rows_idx, pm
+        )
+        group_sinks[g] = sink_table.iloc[gf].reset_index(drop=True)
+
+    # parts, accessories
+    def parts_of(tab: pd.DataFrame, name: str) -> pd.DataFrame:
+        if tab is None or len(tab) == 0:
+            return pd.DataFrame(
+                columns=["table", "part", "price", "stock", "positions"]
+            )
+        return pd.DataFrame(
+            {
+                "table": name,
+                "part": tab["part"].astype(str).to_numpy(),
+                "price": _num(tab, "price"),
+                "stock": _num(tab, "stock"),
+                "positions": _num(tab, "positions", 1.0)
+                if name == "heatsinks"
+                else 1.0,
+            }
+        )
+
+    parts = pd.concat(
+        [
+            parts_of(inventory.switches, "switches"),
+            parts_of(inventory.interfaces, "interfaces"),
+            parts_of(sink_table, "heatsinks"),
+            parts_of(inventory.diodes, "diodes"),
+            parts_of(inventory.drivers, "drivers"),
+        ],
+        ignore_index=True,
+    )
+    parts["price"] = parts["price"].fillna(0.0)
+    acc_rows: list[dict[str, str]] = []
+    present = set(table["channel"])
+    for (c, role, need), o in options.items():
+        if c not in present:
+            continue
+        for p in o["part"].astype(str):
+            acc_rows.append({"channel": c, "role": role, "need": need, "part": p})
+    accessories = pd.DataFrame(acc_rows, columns=["channel", "role", "need", "part"])
+    ch = pd.DataFrame(
+        {
+            "name": [c.name for c in channels],
+            "quantity": [int(c.quantity) for c in channels],
+            "group": [c.heatsink_group or "" for c in channels],
+        }
+    )
+    problem = SelectionProblem(ch, table, parts, gs, accessories, frozenset(enforce))
+    return CandidateSet(problem, per, sink_table, itf, group_sinks, pool)
