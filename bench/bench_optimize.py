@@ -26,7 +26,6 @@ the machine that runs the script; they are reported, never asserted.
 from __future__ import annotations
 
 import argparse
-import dataclasses
 import sys
 import time
 from pathlib import Path
@@ -71,7 +70,12 @@ def synthetic_inventory(n_switches: int, n_sinks: int, seed: int = 4) -> Invento
     ).astype(float)
     size = rng.lognormal(0.0, 0.7, n)  # die size
     pk_factor = np.array([{"SO-8": 0.4, "DPAK": 0.7}.get(p, 1.0) for p in pkg])
-    rds10 = 0.004 * (v / 40.0) ** 1.6 / (size * pk_factor) * np.where(kind == "pmos", 2.2, 1.0)
+    rds10 = (
+        0.004
+        * (v / 40.0) ** 1.6
+        / (size * pk_factor)
+        * np.where(kind == "pmos", 2.2, 1.0)
+    )
     logic = rng.random(n) < 0.5
     rds45 = np.where(logic, rds10 * rng.uniform(1.25, 1.7, n), np.nan)
     i_rating = np.clip(np.round(np.sqrt(2.0 / (rds10 * 1.8)), 1), 1, 200)
@@ -99,9 +103,13 @@ def synthetic_inventory(n_switches: int, n_sinks: int, seed: int = 4) -> Invento
             "vce_sat_vge": np.where(mos, np.nan, 15.0),
             "rth_ja": np.array([RJA[p] for p in pkg]),
             "vgs_max": np.where(mos, 20.0, 20.0),
-            "vth_max": np.where(logic, rng.uniform(1.5, 2.5, n), rng.uniform(3.0, 4.0, n)),
+            "vth_max": np.where(
+                logic, rng.uniform(1.5, 2.5, n), rng.uniform(3.0, 4.0, n)
+            ),
             "rds_hot_ratio": rng.uniform(1.5, 2.0, n),
-            "tab": np.where(rng.random(n) < 0.05, "isolated", np.where(mos, "drain", "collector")),
+            "tab": np.where(
+                rng.random(n) < 0.05, "isolated", np.where(mos, "drain", "collector")
+            ),
             "qg": np.where(mos, qg, 60e-9),
             "qgs": np.where(mos, qg * 0.3, np.nan),
             "qgd": np.where(mos, qg * 0.3, np.nan),
@@ -123,10 +131,26 @@ def synthetic_inventory(n_switches: int, n_sinks: int, seed: int = 4) -> Invento
         sw[f"zth_tau{j}"] = np.nan
     pts = []
     mos_idx = np.flatnonzero(mos)
-    pts.append(pd.DataFrame({"part": sw["part"].to_numpy()[mos_idx], "vgs": 10.0, "rds_on": rds10[mos_idx]}))
+    pts.append(
+        pd.DataFrame(
+            {
+                "part": sw["part"].to_numpy()[mos_idx],
+                "vgs": 10.0,
+                "rds_on": rds10[mos_idx],
+            }
+        )
+    )
     li = mos_idx[logic[mos_idx]]
-    pts.append(pd.DataFrame({"part": sw["part"].to_numpy()[li], "vgs": 4.5, "rds_on": rds45[li]}))
-    rds_points = pd.concat(pts, ignore_index=True).sort_values(["part", "vgs"]).reset_index(drop=True)
+    pts.append(
+        pd.DataFrame(
+            {"part": sw["part"].to_numpy()[li], "vgs": 4.5, "rds_on": rds45[li]}
+        )
+    )
+    rds_points = (
+        pd.concat(pts, ignore_index=True)
+        .sort_values(["part", "vgs"])
+        .reset_index(drop=True)
+    )
 
     rs = np.exp(rng.uniform(np.log(0.3), np.log(25.0), n_sinks))
     fits_choices = [
@@ -141,7 +165,9 @@ def synthetic_inventory(n_switches: int, n_sinks: int, seed: int = 4) -> Invento
         {
             "part": [f"SYN-HS-{k:05d}" for k in range(n_sinks)],
             "price": np.round(6.0 / rs**0.8 * rng.lognormal(0, 0.2, n_sinks) + 0.2, 2),
-            "stock": np.where(rng.random(n_sinks) < 0.5, np.nan, rng.integers(0, 12, n_sinks)).astype(float),
+            "stock": np.where(
+                rng.random(n_sinks) < 0.5, np.nan, rng.integers(0, 12, n_sinks)
+            ).astype(float),
             "rth_sa": np.round(rs, 2),
             "rth_sa_rise": 75.0,
             "fits": fits,
@@ -167,10 +193,25 @@ def synthetic_inventory(n_switches: int, n_sinks: int, seed: int = 4) -> Invento
         [
             (f"SYN-D{i}", p, s, v, a, vf, 80.0, 150.0, "SMA")
             for i, (p, s, v, a, vf) in enumerate(
-                [(0.05, 20, 40, 1, 0.5), (0.08, np.nan, 60, 3, 0.55), (0.15, 10, 100, 5, 0.7), (0.3, np.nan, 200, 10, 0.9)]
+                [
+                    (0.05, 20, 40, 1, 0.5),
+                    (0.08, np.nan, 60, 3, 0.55),
+                    (0.15, 10, 100, 5, 0.7),
+                    (0.3, np.nan, 200, 10, 0.9),
+                ]
             )
         ],
-        columns=["part", "price", "stock", "v_rrm", "i_avg", "vf", "rth_ja", "tj_max", "package"],
+        columns=[
+            "part",
+            "price",
+            "stock",
+            "v_rrm",
+            "i_avg",
+            "vf",
+            "rth_ja",
+            "tj_max",
+            "package",
+        ],
     )
     drivers = pd.DataFrame(
         [
@@ -194,7 +235,9 @@ def synthetic_inventory(n_switches: int, n_sinks: int, seed: int = 4) -> Invento
 
 def board_design() -> Design:
     """16 channels: 4 heatsink groups of 3 channels, 4 channels on their own."""
-    cond = Conditions(ambient_min=-10, ambient_max=45, junction_margin=25, max_parallel=4)
+    cond = Conditions(
+        ambient_min=-10, ambient_max=45, junction_margin=25, max_parallel=4
+    )
     rows = [
         # group A: 24 V heaters and a pump
         ("heater A1", 24, 10, "resistive", 0, 12, "low", 1, "A"),
@@ -259,7 +302,9 @@ def naive_model(inventory, design, settings, time_limit: float):
     t0 = time.perf_counter()
     screens = pipeline.screen_all(inventory, design, settings)
     cond = design.conditions
-    table = hs_mod.sink_operating_table(inventory.heatsinks, None, cond.airflow, cond.heatsink_derating)
+    table = hs_mod.sink_operating_table(
+        inventory.heatsinks, None, cond.airflow, cond.heatsink_derating
+    )
     fits = [cand_mod.fit_items(f) for f in table["fits"]]
     price_s = table["price"].to_numpy(float)
     pos = table["positions"].to_numpy(float)
@@ -270,20 +315,27 @@ def naive_model(inventory, design, settings, time_limit: float):
     sink_use: dict[int, list] = {}
     n_var = 0
     group_heat: dict[str, list] = {}
-    group_choice: dict[str, list] = {}
     rows = []
     for ch in design.channels:
         passed = screens[ch.name].passed
         if len(passed) == 0:
             return None, 0.0, 0.0, {}
         q = ch.quantity
-        io = cand_mod._evaluate.interface_options(passed.reset_index(drop=True), inventory.interfaces, cond)
+        io = cand_mod._evaluate.interface_options(
+            passed.reset_index(drop=True), inventory.interfaces, cond
+        )
         opts = []
         if not ch.heatsink_group:
-            air = passed[(passed["tj_no_sink_peak_c"] <= passed["t_lim_c"]) & ~passed["runaway_no_sink"].astype(bool)]
+            air = passed[
+                (passed["tj_no_sink_peak_c"] <= passed["t_lim_c"])
+                & ~passed["runaway_no_sink"].astype(bool)
+            ]
             for r in air.itertuples():
                 opts.append((r.part, r.count, "", -1, q * r.count * r.price))
         this = []
+        pm_all = hs_mod.sink_max_power(
+            table, np.maximum(io["h_k"].to_numpy(float), 0.0)
+        )
         for j in range(len(io)):
             r = passed.iloc[int(io["row"].iloc[j])]
             pk = str(r["package"]).upper()
@@ -293,23 +345,36 @@ def naive_model(inventory, design, settings, time_limit: float):
             for s in range(len(table)):
                 if pk not in fits[s]:
                     continue
-                pmax = float(hs_mod.sink_max_power(table.iloc[[s]], np.asarray([h]))[0, 0]) if h > 0 else 0.0
-                this.append((r["part"], int(r["count"]), io["interface"].iloc[j], s, base, ptot, h, pmax))
+                pmax = float(pm_all[s, j]) if h > 0 else 0.0
+                this.append(
+                    (
+                        r["part"],
+                        int(r["count"]),
+                        io["interface"].iloc[j],
+                        s,
+                        base,
+                        ptot,
+                        h,
+                        pmax,
+                    )
+                )
         vars_c = []
-        for part, n, _i, s, c in opts:
+        for part, n, _i, _s, c in opts:
             v = prob.add_variable(f"v{n_var}", 0, 1, pulp.LpBinary)
             n_var += 1
             vars_c.append(v)
             cost_terms.append((v, c))
             sw_use.setdefault(part, []).append((v, q * n))
-        for part, n, _i, s, base, ptot, h, pmax in this:
+        for part, n, _i, s, base, ptot, _h, pmax in this:
             v = prob.add_variable(f"v{n_var}", 0, 1, pulp.LpBinary)
             n_var += 1
             vars_c.append(v)
             sw_use.setdefault(part, []).append((v, q * n))
             if ch.heatsink_group:
                 cost_terms.append((v, base))
-                group_heat.setdefault(ch.heatsink_group, []).append((v, q * ptot, s, pmax, n * q))
+                group_heat.setdefault(ch.heatsink_group, []).append(
+                    (v, q * ptot, s, pmax, n * q)
+                )
             else:
                 cost_terms.append((v, base + q * price_s[s]))
                 sink_use.setdefault(s, []).append((v, q))
@@ -317,7 +382,9 @@ def naive_model(inventory, design, settings, time_limit: float):
                 rows.append(pulp.LpAffineExpression([(v, n)]) <= pos[s])
         rows.append(pulp.lpSum(vars_c) == 1)
     for g, items in group_heat.items():
-        sinks = sorted({s for *_, s, _p, _n in [(a, b, c, d, e) for a, b, c, d, e in items]})
+        sinks = sorted(
+            {s for *_, s, _p, _n in [(a, b, c, d, e) for a, b, c, d, e in items]}
+        )
         ys = {s: prob.add_variable(f"y_{g}_{s}", 0, 1, pulp.LpBinary) for s in sinks}
         n_var += len(ys)
         rows.append(pulp.lpSum(ys.values()) == 1)
@@ -325,14 +392,29 @@ def naive_model(inventory, design, settings, time_limit: float):
             cost_terms.append((y, price_s[s]))
             sink_use.setdefault(s, []).append((y, 1))
         big = sum(x[1] for x in items) + 1.0
-        heat_on = {s: pulp.lpSum(v * hq for v, hq, ss, _p, _n in items if ss == s) for s in sinks}
-        dev_on = {s: pulp.lpSum(v * dn for v, _hq, ss, _p, dn in items if ss == s) for s in sinks}
+        # Q_s = heat on sink s (an auxiliary variable, so every big-M row stays short)
+        qs = {s: prob.add_variable(f"Q_{g}_{s}", 0, None) for s in sinks}
+        n_var += len(qs)
+        for s in sinks:
+            rows.append(
+                pulp.LpAffineExpression(
+                    [(qs[s], 1.0)]
+                    + [(v, -hq) for v, hq, ss, _p, _n in items if ss == s]
+                )
+                == 0
+            )
+            rows.append(
+                pulp.LpAffineExpression(
+                    [(v, dn) for v, _hq, ss, _p, dn in items if ss == s]
+                )
+                <= pos[s]
+            )
         for v, _hq, s, pmax, _n in items:
             rows.append(v <= ys[s])
-            rows.append(heat_on[s] <= pmax + big * (1 - v))
-        for s in sinks:
-            rows.append(dev_on[s] <= pos[s])
-    sw_stock = dict(zip(inventory.switches["part"], inventory.switches["stock"]))
+            rows.append(qs[s] + big * v <= pmax + big)
+    sw_stock = dict(
+        zip(inventory.switches["part"], inventory.switches["stock"], strict=True)
+    )
     for part, uses in sw_use.items():
         st = sw_stock.get(part, np.nan)
         if np.isfinite(st):
@@ -372,8 +454,11 @@ def timed_pick(inventory, design, settings, top: int, time_limit: float):
     res = opt.solve(cset.problem, top=top, time_limit=time_limit)
     t["integer program"] = time.perf_counter() - t0
     t0 = time.perf_counter()
+    cache: dict = {}
     sols = [
-        pipeline.evaluate_solution(inventory, design, settings, screens, cset, r, i + 1)
+        pipeline.evaluate_solution(
+            inventory, design, settings, screens, cset, r, i + 1, cache
+        )
         for i, r in enumerate(res.solutions)
     ]
     t["final evaluation"] = time.perf_counter() - t0
@@ -392,15 +477,17 @@ def report(title, t, res, cset):
         f"{res.size.get('nonzeros')} nonzeros; status {res.status}"
     )
     for s in res.solutions:
-        print(f"    solution cost {s.cost:.2f}  proven {s.proven_optimal}  solve {s.seconds:.3f} s")
+        print(
+            f"    solution cost {s.cost:.2f}  proven {s.proven_optimal}  solve {s.seconds:.3f} s"
+        )
 
 
 def main(argv=None) -> None:
     ap = argparse.ArgumentParser(description=__doc__.splitlines()[0])
     ap.add_argument("--switches", type=int, default=100_000)
     ap.add_argument("--sinks", type=int, default=2_000)
-    ap.add_argument("--small-switches", type=int, default=400)
-    ap.add_argument("--small-sinks", type=int, default=40)
+    ap.add_argument("--small-switches", type=int, default=60)
+    ap.add_argument("--small-sinks", type=int, default=15)
     ap.add_argument("--time-limit", type=float, default=60.0)
     ap.add_argument("--naive-time-limit", type=float, default=300.0)
     ap.add_argument("--quick", action="store_true", help="skip the naive model")
@@ -443,8 +530,12 @@ def main(argv=None) -> None:
         print("naive: a channel has no screened rows")
         return
     cost, tb, tsol, size, status = out
-    print("\nsame small inventory: naive formulation (every switch × heatsink pair, big-M)")
-    print(f"  build {tb:8.3f} s (incl. screening), solve {tsol:8.3f} s, status {status}")
+    print(
+        "\nsame small inventory: naive formulation (every switch × heatsink pair, big-M)"
+    )
+    print(
+        f"  build {tb:8.3f} s (incl. screening), solve {tsol:8.3f} s, status {status}"
+    )
     print(
         f"  model {size['variables']} variables, {size['rows']} rows, {size['nonzeros']} nonzeros"
     )

@@ -58,12 +58,67 @@ N-MOSFET/IGBT, source of a high-side P-MOSFET), and ``"<channel>:load"`` (the sw
 load node; different in every copy). On one shared sink the uninsulated devices may hold
 one node only. Parallel devices of one copy share their node, so a channel alone on its
 own sink never needs an insulating interface (the sink is then live; the notes say so).
+
+Building (:func:`build_selection`)
+----------------------------------
+From the screening's passed rows (switch × count, evaluated at the junction limit) ×
+the interfaces that fit the package: the sink-rise budget ``h_k`` of each option comes
+from :func:`selector.evaluate.interface_options`. Ungrouped channels get free-air builds
+(only when ``tj_no_sink_peak_c ≤ t_lim`` and every device stands alone) and own-sink
+builds; the cheapest adequate sinks are found by one vectorised comparison of the
+options against the price-sorted sink frontier (adequate: fits the package, positions ≥
+count, stock ≥ quantity, ``sink_max_power(sink, h_k) ≥ count·p_dev``). Grouped channels'
+builds carry no sink: the group's sink options (the frontier of the sinks that fit the
+members' packages) go to the model with ``Pmax(k, s) = sink_max_power(s, h_k)``.
+
+Pruning (what is kept, and why the cheapest board survives)
+-----------------------------------------------------------
+*Safe* below means: the part's stock (switch, interface, sink, and the cheapest
+accessory) is unlimited or covers what the whole board could ever use, so choosing it
+can never break a stock limit, whatever the other channels take.
+
+* Interfaces: per package and insulating class, Pareto layers on (price, RθCS, −t_max);
+  the first 2 are kept (stock 0 is out).
+* Sinks: per package (own sinks) or per group, Pareto layers on (price, −positions,
+  −power taken at every rise of a grid over the design's range, −fit per package; two
+  power laws keep their order between the ends of the grid); the first 2 are kept.
+* Ungrouped channel: within each class of accessory needs, builds are taken in order of
+  cost (larger margin first at equal cost), at most ``per_part`` (3) per switch part,
+  until ``keep_parts`` (5) switch parts are in and one safe build is in; every dearer
+  build could be swapped for that safe one without breaking a limit, so the cheapest
+  cost is never lost (the search stops examining options once no cheaper one is left).
+* Grouped channel, per group:
+  1. a cost window: UB = the cost of a safe group build (every member on safe parts,
+     all tabs insulated or one member's live, on a safe sink; found by a search over
+     sinks and heat levels); LB_c = each member's cheapest build. A build of member c
+     costing more than UB − Σ_{c'≠c} LB_c' − (cheapest sink), or a sink costing more
+     than UB − Σ LB_c, cannot be in an optimal board (swapping the group to the safe
+     build would be cheaper and still feasible). ``ranking_slack`` (10 % of UB) is added
+     so that near-optimal alternatives survive for the ranking;
+  2. builds no sink fits or carries alone (heat, positions, several live copies) are out;
+  3. per-sink bound: on sink s every member needs Pmax(k, s) ≥ its own heat plus the
+     least heat the others bring (and the positions likewise), which bounds the group's
+     cost on s from below; sinks and builds that cannot reach UB + slack on any sink are
+     out;
+  4. dominance on (cost, heat, −budget, devices, live tab) within each class of package
+     and accessory needs: builds of one switch part dominated by another build of the
+     same part go first, then the first ``group_layers`` (2) Pareto layers are kept. A
+     dropped build is dominated by builds of at least two *other* switch parts (a chain
+     of dominating builds never repeats a part), so it is needed only when both are out
+     of stock.
 """
 
 from __future__ import annotations
 
+import math
+from dataclasses import dataclass, field
+from typing import Any
+
 import numpy as np
 import pandas as pd
+
+from selector import evaluate as _evaluate
+from selector import heatsinks as _heatsinks
 
 CANDIDATE_COLUMNS: dict[str, str] = {
     "channel": "str",
@@ -123,7 +178,12 @@ def candidate_frame(rows: list[dict] | pd.DataFrame) -> pd.DataFrame:
                 df[col] = _DEFAULTS[kind]
     for col, kind in CANDIDATE_COLUMNS.items():
         if kind == "str":
-            df[col] = df[col].fillna("").astype(str)
+            col_s = df[col]
+            if col_s.dtype != object:
+                col_s = pd.Series(
+                    col_s.to_numpy(dtype=object), index=df.index, dtype=object
+                )
+            df[col] = col_s.where(col_s.notna(), "")
         elif kind == "int":
             df[col] = df[col].astype(int)
         elif kind == "bool":
@@ -134,49 +194,13 @@ def candidate_frame(rows: list[dict] | pd.DataFrame) -> pd.DataFrame:
 
 
 # ======================================================================================
-# building the candidates from the screened rows
+# building the candidates from the screened rows (see "Pruning" in the module docstring)
 # ======================================================================================
-#
-# Pruning (what is kept, and why the optimum survives)
-# ----------------------------------------------------
-# * Interfaces: per package and per insulating class, an interface is dropped when two
-#   others are no dearer, no worse in RθCS and no lower in t_max (2 Pareto layers kept,
-#   stock 0 dropped).
-# * Sinks: per package (own sinks) or per group (shared sinks), a sink is dropped when
-#   two others are no dearer, carry at least as many devices, fit every package it fits
-#   and take at least as much power at every rise of the design's range (2 layers;
-#   stock 0 dropped; an own sink needs stock ≥ the channel's quantity).
-# * Own sink of an ungrouped candidate: for every (switch, count, interface) the
-#   cheapest adequate sinks are found by one vectorised comparison against the
-#   price-sorted sink frontier (adequate: fits the package, positions ≥ count, and
-#   sink_max_power at the candidate's budget h ≥ count·p_dev); the first
-#   ``sink_alternatives`` (3) are kept.
-# * Ungrouped channel: within each class of accessory needs (diode, driver), candidates
-#   are taken in order of cost (larger margin first at equal cost), at most
-#   ``per_part`` (3) per switch part, until at least ``keep_parts`` (5) switch parts are
-#   in and one *safe* candidate is in: one whose switch, interface and sink have no
-#   stock limit or a stock at least the whole board's demand. Any dearer candidate can
-#   be swapped for that safe one without breaking a stock limit, so the cheapest cost is
-#   never lost; the other kept parts serve the ranked alternatives.
-# * Grouped channel: candidates that fit no sink of the group, or overload the group's
-#   largest sink on their own, are dropped; the rest are sorted into Pareto layers on
-#   (cost, heat on the shared sink, −budget h) within each class of package, count,
-#   uninsulated tab node and accessory needs; the first ``group_layers`` (6) layers are
-#   kept. A candidate in a later layer is dominated (no cheaper, no more heat, no less
-#   budget) by at least one candidate of every earlier layer, so it can only be needed
-#   when six better ones are all out of stock.
-
-import math  # noqa: E402
-from dataclasses import dataclass, field  # noqa: E402
-from typing import Any  # noqa: E402
-
-from selector import evaluate as _evaluate  # noqa: E402
-from selector import heatsinks as _heatsinks  # noqa: E402
 
 
 @dataclass(frozen=True)
 class PruneSettings:
-    """How many alternatives the pruning keeps (see the comment block above)."""
+    """How many alternatives the pruning keeps (see "Pruning" in the module docstring)."""
 
     keep_parts: int = 5
     per_part: int = 3
@@ -218,28 +242,34 @@ def pareto_layers(values: np.ndarray, max_layers: int, block: int = 512) -> np.n
     return layer
 
 
+def _dominated_by(sky: np.ndarray, x: np.ndarray) -> np.ndarray:
+    """For each row of ``x``: some row of ``sky`` is ≤ it in every column."""
+    out = np.zeros(len(x), dtype=bool)
+    for s0 in range(0, len(sky), 2048):
+        s = sky[s0 : s0 + 2048]
+        acc = s[None, :, 0] <= x[:, None, 0]
+        for j in range(1, x.shape[1]):
+            acc &= s[None, :, j] <= x[:, None, j]
+        out |= acc.any(axis=1)
+    return out
+
+
 def _nondominated_sorted(v: np.ndarray, block: int) -> np.ndarray:
     """Mask of rows of lexicographically sorted ``v`` not dominated by an earlier row."""
     n, d = v.shape
     keep = np.zeros(n, dtype=bool)
     sky = np.empty((0, d))
+    tri = np.tril(np.ones((block, block), dtype=bool), k=-1)
     for start in range(0, n, block):
         x = v[start : start + block]
-        if len(sky):
-            dom = np.zeros(len(x), dtype=bool)
-            for s0 in range(0, len(sky), 4096):
-                s = sky[s0 : s0 + 4096]
-                dom |= (s[None, :, :] <= x[:, None, :]).all(axis=2).any(axis=1)
-        else:
-            dom = np.zeros(len(x), dtype=bool)
-        le = (x[None, :, :] <= x[:, None, :]).all(axis=2)
-        dom |= np.tril(le, k=-1).any(axis=1)
+        dom = _dominated_by(sky, x) if len(sky) else np.zeros(len(x), dtype=bool)
+        le = x[None, :, 0] <= x[:, None, 0]
+        for j in range(1, d):
+            le &= x[None, :, j] <= x[:, None, j]
+        dom |= (le & tri[: len(x), : len(x)]).any(axis=1)
         keep[start : start + len(x)] = ~dom
         sky = np.vstack([sky, x[~dom]])
     return keep
-
-
-# --------------------------------------------------------------------------- helpers
 
 
 def local_front(keys: np.ndarray, values: np.ndarray, chunk: int = 4096) -> np.ndarray:
@@ -302,16 +332,18 @@ def _num(df: pd.DataFrame, col: str, default: float = np.nan) -> np.ndarray:
 
 
 def _text(df: pd.DataFrame, col: str) -> np.ndarray:
+    """A text column as an object array, blanks as ""."""
     if col not in df.columns:
         return np.full(len(df), "", dtype=object)
-    v = df[col].to_numpy(dtype=object)
-    return np.array(
-        [
-            "" if (x is None or (isinstance(x, float) and math.isnan(x))) else str(x)
-            for x in v
-        ],
-        dtype=object,
-    )
+    s = df[col]
+    return s.where(s.notna(), "").astype(str).astype(object).to_numpy(dtype=object)
+
+
+def _obj(values, n: int | None = None, index=None) -> pd.Series:
+    """An object-dtype column (pandas' arrow strings make row selection slow here)."""
+    if n is not None:
+        values = np.full(n, values, dtype=object)
+    return pd.Series(np.asarray(values, dtype=object), index=index, dtype=object)
 
 
 def stock_allows(stock: np.ndarray, units) -> np.ndarray:
@@ -338,13 +370,9 @@ def tab_nodes(
     """
     kind = np.asarray(kind, dtype=object)
     side = np.asarray(side, dtype=object)
-    tab = np.array(
-        [
-            str(t).lower() if isinstance(t, str) and t else "drain"
-            for t in np.asarray(tab, dtype=object)
-        ],
-        dtype=object,
-    )
+    t = pd.Series(np.asarray(tab, dtype=object), dtype=object)
+    t = t.where(t.map(lambda x: isinstance(x, str) and x != ""), "drain")
+    tab = t.astype(str).str.lower().to_numpy(dtype=object)
     n = len(tab)
     load = f"{channel}:load"
     rail = f"rail:{float(supply):g}V"
@@ -479,6 +507,9 @@ class ChannelCandidates:
     dropped: dict[str, int] = field(default_factory=dict)
     passed: pd.DataFrame = field(default_factory=pd.DataFrame)
     pruned: int = 0
+    base: pd.DataFrame | None = (
+        None  # grouped: full rows, joined back after the group stage
+    )
 
 
 @dataclass
@@ -503,12 +534,16 @@ def _count(d: dict[str, int], key: str, n: int) -> None:
 
 
 def _driver_need(kind: np.ndarray, vmin: np.ndarray, vmax: np.ndarray) -> np.ndarray:
+    """The optimizer's driver key "kind@vmin-vmax" per row ("" without a driver)."""
     out = np.full(len(kind), "", dtype=object)
-    for i, k in enumerate(kind):
+    keys = pd.DataFrame({"k": kind, "lo": vmin, "hi": vmax})
+    for (k, lo, hi), idx in keys.groupby(
+        ["k", "lo", "hi"], dropna=False
+    ).indices.items():
         if k:
-            lo = "" if not np.isfinite(vmin[i]) else f"{vmin[i]:g}"
-            hi = "" if not np.isfinite(vmax[i]) else f"{vmax[i]:g}"
-            out[i] = f"{k}@{lo}-{hi}"
+            a = "" if not np.isfinite(lo) else f"{lo:g}"
+            b = "" if not np.isfinite(hi) else f"{hi:g}"
+            out[idx] = f"{k}@{a}-{b}"
     return out
 
 
@@ -527,25 +562,27 @@ def _base_rows(channel, passed: pd.DataFrame, quantity: int) -> pd.DataFrame:
     dk = _text(passed, "driver_kind")
     base = pd.DataFrame(
         {
-            "channel": channel.name,
+            "channel": _obj(channel.name, n),
             "row": np.arange(n),
-            "switch": _text(passed, "part"),
+            "switch": _obj(_text(passed, "part")),
             "count": passed["count"].to_numpy(dtype=int),
-            "package": np.array(
-                [str(p).upper() for p in _text(passed, "package")], dtype=object
+            "package": _obj(
+                pd.Series(_text(passed, "package")).str.upper().to_numpy(dtype=object)
             ),
-            "kind": kind,
-            "side": side,
-            "tab": _text(passed, "tab"),
-            "topology": _text(passed, "topology"),
+            "kind": _obj(kind),
+            "side": _obj(side),
+            "tab": _obj(_text(passed, "tab")),
+            "topology": _obj(_text(passed, "topology")),
             "needs_diode": passed["needs_diode"].fillna(False).astype(bool).to_numpy()
             if "needs_diode" in passed
             else np.zeros(n, bool),
-            "driver_kind": dk,
-            "driver_need": _driver_need(
-                dk, _num(passed, "driver_v_min"), _num(passed, "driver_v_max")
+            "driver_kind": _obj(dk),
+            "driver_need": _obj(
+                _driver_need(
+                    dk, _num(passed, "driver_v_min"), _num(passed, "driver_v_max")
+                )
             ),
-            "tab_node": nodes,
+            "tab_node": _obj(nodes),
             "node_per_copy": per_copy,
             "switch_price": _num(passed, "price"),
             "switch_stock": _num(passed, "stock"),
@@ -580,11 +617,11 @@ def _air_rows(base: pd.DataFrame) -> pd.DataFrame:
         & ~base["runaway_no_sink"].to_numpy(bool)
     )
     air = base[ok].copy()
-    air["mount"] = "air"
-    air["interface"] = ""
-    air["heatsink"] = ""
+    air["mount"] = _obj("air", len(air), air.index)
+    air["interface"] = _obj("", len(air), air.index)
+    air["heatsink"] = _obj("", len(air), air.index)
     air["insulating"] = False
-    air["tab_node"] = ""  # alone in air: no shared metal
+    air["tab_node"] = _obj("", len(air), air.index)  # alone in air: no shared metal
     air["node_per_copy"] = False
     air["cost"] = air["count"] * air["switch_price"]
     air["dev_rise_k"] = 0.0
@@ -597,14 +634,37 @@ def _air_rows(base: pd.DataFrame) -> pd.DataFrame:
     return air
 
 
+#: Columns a grouped channel's builds carry through the group stage; the rest of the
+#: row is joined back (on ``row``) only for the builds kept.
+LIGHT_COLUMNS = (
+    "channel",
+    "row",
+    "switch",
+    "count",
+    "package",
+    "needs_diode",
+    "driver_need",
+    "tab_node",
+    "node_per_copy",
+    "switch_stock",
+    "switch_price",
+    "p_dev_w",
+    "p_total_w",
+)
+
+
 def _interface_rows(
     base: pd.DataFrame,
     passed: pd.DataFrame,
     interfaces: pd.DataFrame,
     conditions,
     quantity: int,
+    columns: tuple[str, ...] | None = None,
 ) -> tuple[pd.DataFrame, int]:
-    """(switch, count) × every interface that fits, with the sink budget h."""
+    """(switch, count) × every interface that fits, with the sink budget h.
+
+    ``columns``: carry only these columns of ``base`` (large inventories).
+    """
     if len(interfaces) == 0 or len(base) == 0:
         return base.iloc[0:0].assign(interface="", insulating=False), 0
     io = _evaluate.interface_options(
@@ -613,15 +673,16 @@ def _interface_rows(
     if len(io) == 0:
         return base.iloc[0:0].assign(interface="", insulating=False), 0
     rows = io["row"].to_numpy(dtype=int)
-    opt = base.iloc[rows].reset_index(drop=True)
+    src = base if columns is None else base[list(columns)]
+    opt = src.iloc[rows].reset_index(drop=True)
     istock = dict(
         zip(interfaces["part"].astype(str), _num(interfaces, "stock"), strict=True)
     )
-    opt["interface"] = io["interface"].astype(str).to_numpy()
-    opt["interface_price"] = io["interface_price"].to_numpy(float)
-    opt["interface_stock"] = np.array(
-        [istock.get(p, np.nan) for p in opt["interface"]], dtype=float
+    opt["interface"] = _obj(
+        io["interface"].astype(str).to_numpy(dtype=object), index=opt.index
     )
+    opt["interface_price"] = io["interface_price"].to_numpy(float)
+    opt["interface_stock"] = opt["interface"].map(istock).astype(float).to_numpy()
     opt["insulating"] = io["insulating"].to_numpy(bool)
     opt["rth_cs_k_per_w"] = io["rth_cs_k_per_w"].to_numpy(float)
     opt["dev_rise_k"] = io["dev_rise_k"].to_numpy(float)
@@ -676,9 +737,12 @@ def _own_sink_rows(
             rise = _heatsinks.sink_rise(
                 st, rows["p_total_w"].to_numpy(float), outer=False
             )
-            rows["heatsink"] = table["part"].astype(str).to_numpy()[sinks]
+            rows["heatsink"] = _obj(
+                table["part"].astype(str).to_numpy(dtype=object)[sinks],
+                index=rows.index,
+            )
             rows["sink_stock"] = _num(table, "stock")[sinks]
-            rows["mount"] = "sink"
+            rows["mount"] = _obj("sink", len(rows), rows.index)
             rows["cost"] = rows["base_cost"].to_numpy(float) + price[sinks]
             rows["margin_k"] = rows["h_k"].to_numpy(float) - rise
             with np.errstate(divide="ignore", invalid="ignore"):
@@ -700,10 +764,14 @@ def _own_sink_rows(
 
 def _prune_ungrouped(
     cand: pd.DataFrame, prune: PruneSettings, board_demand: dict[str, float]
-) -> pd.DataFrame:
-    """The cost-order rule for an ungrouped channel (see the comment block above)."""
+) -> tuple[pd.DataFrame, dict[str, float]]:
+    """The cost-order rule for an ungrouped channel (see the comment block above).
+
+    Returns the kept candidates and, per class of accessory needs, the cost at which
+    the rule stopped (inf where it never stopped: every candidate of the class kept).
+    """
     if len(cand) == 0:
-        return cand
+        return cand, {}
     cand = cand.sort_values(
         ["cost", "margin_k"], ascending=[True, False], kind="stable"
     ).reset_index(drop=True)
@@ -719,8 +787,10 @@ def _prune_ungrouped(
         )
     )
     keep = np.zeros(len(cand), dtype=bool)
-    klass = cand["needs_diode"].astype(str) + "/" + cand["driver_need"].astype(str)
-    for _, idx in cand.groupby(klass, sort=False).indices.items():
+    stops: dict[str, float] = {}
+    klass = _need_class(cand)
+    cost = cand["cost"].to_numpy(float)
+    for k, idx in pd.Series(klass).groupby(klass, sort=False).indices.items():
         idx = np.sort(idx)
         parts = cand["switch"].to_numpy()[idx]
         rank_in_part = pd.Series(parts).groupby(parts).cumcount().to_numpy()
@@ -728,10 +798,76 @@ def _prune_ungrouped(
         distinct = np.cumsum(first_of_part)
         seen_safe = np.cumsum(safe[idx]) > 0
         done = (distinct >= prune.keep_parts) & seen_safe
-        stop = int(np.argmax(done)) if done.any() else len(idx) - 1
+        if done.any():
+            stop = int(np.argmax(done))
+            stops[k] = float(cost[idx[stop]])
+        else:
+            stop = len(idx) - 1
+            stops[k] = math.inf
         sel = idx[: stop + 1][rank_in_part[: stop + 1] < prune.per_part]
         keep[sel] = True
-    return cand[keep].reset_index(drop=True)
+    return cand[keep].reset_index(drop=True), stops
+
+
+def _need_class(df: pd.DataFrame) -> np.ndarray:
+    return (
+        df["needs_diode"].astype(str) + "/" + df["driver_need"].astype(str)
+    ).to_numpy(dtype=object)
+
+
+def _ungrouped_table(
+    opts: pd.DataFrame,
+    air: pd.DataFrame,
+    sink_table: pd.DataFrame,
+    own_frontier: dict[str, np.ndarray],
+    prune: PruneSettings,
+    board_demand: dict[str, float],
+    quantity: int,
+) -> tuple[pd.DataFrame, int, set, set]:
+    """Own-sink candidates in order of base cost, stopping once no later option can
+    pass the cost-order rule; then the rule itself.
+
+    Returns (kept candidates, pruned count, rows whose options were examined, rows
+    that got a build before the rule).
+    """
+    if len(opts):
+        opts = opts.sort_values("base_cost", kind="stable").reset_index(drop=True)
+    klass = _need_class(opts) if len(opts) else np.zeros(0, dtype=object)
+    last = {k: int(i) for i, k in enumerate(klass)}  # last position of each class
+    base_cost = opts["base_cost"].to_numpy(float) if len(opts) else np.zeros(0)
+    air_rows = set(air["row"].tolist())
+    n_air = len(air)
+    air, _ = _prune_ungrouped(air, prune, board_demand)  # a superset of what survives
+    found = [air]
+    i = 0
+    step = max(int(prune.chunk // 16), 1024)
+    while i < len(opts):
+        part = opts.iloc[i : i + step]
+        rows, _ = _own_sink_rows(
+            part,
+            sink_table,
+            own_frontier,
+            prune.sink_alternatives,
+            prune.chunk,
+            quantity,
+        )
+        found.append(rows)
+        i += len(part)
+        step *= 2
+        if i >= len(opts):
+            break
+        _, stops = _prune_ungrouped(
+            pd.concat(found, ignore_index=True), prune, board_demand
+        )
+        nxt = base_cost[i]
+        remaining = [k for k, lp in last.items() if lp >= i]
+        if all(stops.get(k, math.inf) < nxt for k in remaining):
+            break
+    examined = set(opts["row"].iloc[:i].tolist()) if len(opts) else set()
+    table = pd.concat(found, ignore_index=True)
+    built = set(table["row"].tolist()) | air_rows
+    kept, _ = _prune_ungrouped(table, prune, board_demand)
+    return kept, len(table) + n_air - len(air) - len(kept), examined, built
 
 
 def channel_candidates(
@@ -772,14 +908,17 @@ def channel_candidates(
     keep_rows = np.flatnonzero(enough)
     base = base.iloc[keep_rows].reset_index(drop=True)
     sub_passed = passed.reset_index(drop=True).iloc[keep_rows].reset_index(drop=True)
-    opts, bad_if = _interface_rows(base, sub_passed, interfaces, conditions, q)
+    grouped = bool(channel.heatsink_group)
+    opts, bad_if = _interface_rows(
+        base, sub_passed, interfaces, conditions, q, LIGHT_COLUMNS if grouped else None
+    )
     _count(dropped, "interface", bad_if)
     all_rows = set(base["row"].tolist())
     pruned = 0
-    if channel.heatsink_group:
-        table = opts.copy()
-        table["mount"] = "group"
-        table["heatsink"] = ""
+    if grouped:
+        table = opts
+        table["mount"] = _obj("group", len(table), table.index)
+        table["heatsink"] = _obj("", len(table), table.index)
         table["cost"] = table["base_cost"]
         table["margin_k"] = table["h_k"]
         table["rth_sa_k_per_w"] = np.nan
@@ -790,21 +929,19 @@ def channel_candidates(
             "no_interface",
             len(lost),
         )
+        # the group stage reduces these light rows, then joins the rest back
+        return ChannelCandidates(
+            channel.name, table, dropped, passed.reset_index(drop=True), 0, base
+        )
     else:
-        sinks, _unmatched = _own_sink_rows(
-            opts, sink_table, own_frontier, prune.sink_alternatives, prune.chunk, q
-        )
         air = _air_rows(base)
-        table = pd.concat([sinks, air], ignore_index=True)
-        lost = all_rows - set(table["row"].tolist())
-        _count(
-            dropped,
-            "no_heatsink",
-            len(lost),
+        table, pruned, examined, built = _ungrouped_table(
+            opts, air, sink_table, own_frontier, prune, board_demand, q
         )
-        n_before = len(table)
-        table = _prune_ungrouped(table, prune, board_demand)
-        pruned = n_before - len(table)
+        # rows not examined (cheaper builds sufficed) are not counted as "no heatsink"
+        no_option = all_rows - set(opts["row"].tolist()) if len(opts) else all_rows
+        lost = (examined | no_option) - built
+        _count(dropped, "no_heatsink", len(lost))
     return ChannelCandidates(
         channel.name,
         candidate_frame(table),
@@ -816,14 +953,21 @@ def channel_candidates(
 
 def _fit_matrix(sinks: pd.DataFrame, packages) -> np.ndarray:
     """(S, M) bool: sink s fits the package of item m (vectorised over package codes)."""
-    pk = np.asarray([str(p).upper() for p in packages], dtype=object)
-    codes, uniq = pd.factorize(pd.Series(pk, dtype=object))
-    fits = [fit_items(f) for f in sinks["fits"]]
+    codes, uniq = pd.factorize(
+        pd.Series(np.asarray(packages, dtype=object)).str.upper()
+    )
+    cache: dict[Any, tuple[str, ...]] = {}
+    fits = []
+    for f in sinks["fits"]:
+        key = f if isinstance(f, (tuple, str)) else repr(f)
+        if key not in cache:
+            cache[key] = fit_items(f)
+        fits.append(cache[key])
     table = np.array([[u in f for u in uniq] for f in fits], dtype=bool).reshape(
         len(sinks), len(uniq)
     )
     if len(uniq) == 0:
-        return np.zeros((len(sinks), len(pk)), dtype=bool)
+        return np.zeros((len(sinks), len(codes)), dtype=bool)
     return table[:, codes]
 
 
@@ -934,7 +1078,9 @@ def _reduce_group(
        of ``ranking_slack``·UB is added so that near-optimal alternatives survive.
     2. A candidate that no sink of the group fits, or that overloads every sink (heat
        or positions) on its own, is out.
-    3. Dominance on (cost, heat, −budget, devices, uninsulated tab) within each class
+    3. Per-sink bound (see the code comment): sinks and candidates that cannot be part
+       of a group build within UB + slack on any sink are out.
+    4. Dominance on (cost, heat, −budget, devices, uninsulated tab) within each class
        of package and accessory needs: first the builds of a switch part that another
        build of the same part dominates are dropped; then the first ``group_layers``
        Pareto layers are kept. A dropped build is dominated by builds of at least
@@ -998,35 +1144,34 @@ def _reduce_group(
         alone = (pm >= heat[cand_idx, None] - 1e-12) & (pm > 0)
         alone &= pos[sink_ok][None, :] >= dev[cand_idx, None]
         possible[cand_idx[alone.any(axis=1)]] = True
-    keep = np.zeros(len(rows), dtype=bool)
-    idx_possible = np.flatnonzero(possible)
-    if idx_possible.size:
-        sub = rows.iloc[idx_possible]
-        klass = (
-            sub["channel"].astype(str)
-            + "|"
-            + sub["package"].astype(str)
-            + "|"
-            + sub["needs_diode"].astype(str)
-            + "|"
-            + sub["driver_need"].astype(str)
-        ).to_numpy()
-        vals_all = np.column_stack([cost_lo, heat, -h, dev, touching.astype(float)])
-        # builds of one part that another build of the same part dominates go first,
-        # so that the layers below count distinct parts
-        own = local_front(
-            klass + "|" + sub["switch"].astype(str).to_numpy(), vals_all[idx_possible]
-        )
-        for _, local in pd.Series(klass).groupby(klass, sort=False).indices.items():
-            ids = idx_possible[local[own[local]]]
-            lay = pareto_layers(vals_all[ids], prune.group_layers)
-            keep[ids[lay <= prune.group_layers]] = True
-    # 4. per-sink bound: on sink s every member c needs Pmax(k, s) ≥ its own heat plus
+    # 3. per-sink bound: on sink s every member c needs Pmax(k, s) ≥ its own heat plus
     #    the least heat the others can bring, so the group costs at least
     #    LB(s) = price_s + Σ_c LB_c(s); a sink with LB(s) > UB + slack is out, and a
     #    candidate is kept only on a sink where price_s + cost_k + Σ_{c'≠c} LB_c'(s)
     #    ≤ UB + slack (exact relaxation: it ignores only the coupling it bounds).
-    kidx = np.flatnonzero(keep)
+    # builds of one part that another build of the same part dominates go first
+    # (step 4's first half; done here because it is cheap and shrinks step 3)
+    klass_all = (
+        rows["channel"].astype(str)
+        + "|"
+        + rows["package"].astype(str)
+        + "|"
+        + rows["needs_diode"].astype(str)
+        + "|"
+        + rows["driver_need"].astype(str)
+    ).to_numpy(dtype=object)
+    vals_all = np.column_stack([cost_lo, heat, -h, dev, touching.astype(float)])
+    pidx = np.flatnonzero(possible)
+    useful_mask = np.zeros(len(rows), dtype=bool)
+    if pidx.size:
+        own = local_front(
+            klass_all[pidx]
+            + "|"
+            + rows["switch"].astype(str).to_numpy(dtype=object)[pidx],
+            vals_all[pidx],
+        )
+        useful_mask[pidx[own]] = True
+    kidx = np.flatnonzero(useful_mask)
     if kidx.size and kept_sinks.size:
         pm = _group_pmax(rows.iloc[kidx], table, kept_sinks)  # (K, S)
         kpos = _num(table, "positions", 1.0)[kept_sinks]
@@ -1080,10 +1225,28 @@ def _reduce_group(
             sink_useful = np.isfinite(lb_all)
             useful = ok & sink_useful[None, :]
         drop = ~useful.any(axis=1)
-        keep[kidx[drop]] = False
+        useful_mask[kidx[drop]] = False
         kept_sinks = kept_sinks[sink_useful & useful.any(axis=0)]
+    # 4. dominance (builds of one part first, then layers over the parts)
+    keep = np.zeros(len(rows), dtype=bool)
+    idx_possible = np.flatnonzero(useful_mask)
+    if idx_possible.size:
+        klass = klass_all[idx_possible]
+        for _, local in pd.Series(klass).groupby(klass, sort=False).indices.items():
+            ids = idx_possible[local]
+            lay = pareto_layers(vals_all[ids], prune.group_layers)
+            keep[ids[lay <= prune.group_layers]] = True
     rejected = ~usable | (window & ~possible)
     return keep, rejected, kept_sinks, ub
+
+
+def _enrich(kept: pd.DataFrame, base: pd.DataFrame | None) -> pd.DataFrame:
+    """Join the columns a light group build left behind back on (by ``row``)."""
+    if base is None or len(kept) == 0:
+        return candidate_frame(kept)
+    extra = [c for c in base.columns if c not in kept.columns or c == "row"]
+    full = kept.merge(base[extra], on="row", how="left", sort=False)
+    return candidate_frame(full)
 
 
 def build_selection(
@@ -1128,7 +1291,7 @@ def build_selection(
     for c in channels:
         sc = screens.get(c.name)
         if sc is not None and len(sc.passed):
-            packages |= {str(p).upper() for p in sc.passed["package"]}
+            packages |= set(sc.passed["package"].astype(str).str.upper().unique())
             t_lim_hi = max(t_lim_hi, float(np.nanmax(_num(sc.passed, "t_lim_c"))))
     rise_hi = max(t_lim_hi - cond.ambient_max, 2.0)
     own_frontier = {
@@ -1223,7 +1386,7 @@ def build_selection(
     safe_sink = stock_allows(_num(sink_table, "stock"), board_demand["heatsinks"])
     for g, members in groups.items():
         rows = pd.concat([per[m].table for m in members], ignore_index=True)
-        pk = sorted({str(p) for p in rows["package"]}) if len(rows) else []
+        pk = sorted(rows["package"].astype(str).unique()) if len(rows) else []
         gf = sink_frontier(sink_table, pk, 1.0, rise_hi, layers=prune.sink_layers)
         if len(rows) == 0:
             group_frontier[g] = gf
@@ -1239,7 +1402,7 @@ def build_selection(
             mask = (rows["channel"] == m).to_numpy()
             _count(per[m].dropped, "group_sink", int((mask & rejected).sum()))
             per[m].pruned += int((mask & ~rejected & ~keep).sum())
-            per[m].table = candidate_frame(rows[mask & keep])
+            per[m].table = _enrich(rows[mask & keep], per[m].base)
 
     table = (
         candidate_frame(

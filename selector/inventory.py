@@ -22,6 +22,7 @@ import codecs
 import csv
 import functools
 import io
+import itertools
 import os
 import re
 import warnings
@@ -90,6 +91,8 @@ _DOC_SHEETS = frozenset(
     }
 )
 _CATEGORY_HEADERS = frozenset({"category", "table"})
+# characters below 32 other than tab, line feed and carriage return
+_CONTROL_CHAR_RE = re.compile(r"[\x00-\x08\x0b\x0c\x0e-\x1f]")
 _UNIT_BRACKET_RE = re.compile(r"^(?P<name>.*?)\s*\[(?P<unit>[^\]]*)\]\s*$")
 _UNIT_PAREN_RE = re.compile(r"^(?P<name>.*?)\s*\((?P<unit>[^()]*)\)\s*$")
 _CURRENCY_RE = re.compile(
@@ -191,17 +194,70 @@ def _json_value(v: Any) -> Any:
 _ISSUE_FIELDS = ("file", "sheet", "row", "column", "value", "reason", "table", "part")
 
 
+class _Same:
+    """One value standing for every issue of a column-wise block."""
+
+    __slots__ = ("value",)
+
+    def __init__(self, value: Any) -> None:
+        self.value = value
+
+
+class _Take:
+    """``base[index]``, taken only when the issues are read."""
+
+    __slots__ = ("base", "index")
+
+    def __init__(self, base: np.ndarray, index: np.ndarray) -> None:
+        self.base = base
+        self.index = index
+
+
+def _block_field(v: Any) -> Any:
+    """A field of a column-wise block: an array (or list) per issue, one value for all,
+    or a :class:`_Take`."""
+    if isinstance(v, np.ndarray | _Take):
+        return v
+    if isinstance(v, list | tuple):
+        return np.asarray(v, dtype=object)
+    if isinstance(v, pd.Series):
+        return v.to_numpy(dtype=object)
+    return _Same(v)
+
+
+def _field_values(v: Any, n: int) -> Any:
+    """The values of a block field, one per issue, as Python objects."""
+    if isinstance(v, _Same):
+        return itertools.repeat(v.value, n)
+    if isinstance(v, _Take):
+        return v.base[v.index].tolist()
+    return v.tolist()
+
+
+def _field_array(v: Any, n: int) -> np.ndarray:
+    """The values of a block field as an object array."""
+    if isinstance(v, _Same):
+        out = np.empty(n, dtype=object)
+        out[:] = v.value
+        return out
+    if isinstance(v, _Take):
+        return np.asarray(v.base[v.index], dtype=object)
+    return np.asarray(v, dtype=object)
+
+
 class IssueList(Sequence[RowIssue]):
     """A list of :class:`RowIssue` stored column-wise in blocks.
 
     Large inventories produce hundreds of thousands of assumed values; they are kept as
-    arrays and turned into ``RowIssue`` objects only when read. Behaves like a read-only
-    list with ``append``, ``extend``, ``add_columns`` and ``sort``.
+    arrays (or one value for a whole block) and turned into ``RowIssue`` objects only
+    when read. Behaves like a read-only list with ``append``, ``extend``,
+    ``add_columns`` and ``sort``.
     """
 
     def __init__(self, items: Any = ()) -> None:
-        self._blocks: list[Any] = []  # list[RowIssue] or dict of equal-length arrays
+        self._blocks: list[Any] = []  # list[RowIssue], or (n, dict of block fields)
         self._cache: list[RowIssue] | None = None
+        self._len = 0
         if items:
             self.extend(items)
 
@@ -210,17 +266,26 @@ class IssueList(Sequence[RowIssue]):
         if not self._blocks or not isinstance(self._blocks[-1], list):
             self._blocks.append([])
         self._blocks[-1].append(issue)
+        self._len += 1
 
     def extend(self, issues: Any) -> None:
         for i in issues:
             self.append(i)
 
-    def add_columns(self, **cols: np.ndarray) -> None:
-        """Append issues given as equal-length arrays, one per RowIssue field."""
-        n = len(cols["row"])
+    def add_columns(self, **cols: Any) -> None:
+        """Append issues given column-wise, one entry per RowIssue field.
+
+        ``row`` is an array (one issue per element) or a :class:`_Take`; any other
+        field is an array or list of the same length, a :class:`_Take` of it, or a
+        single value shared by all these issues. Arrays are kept, not copied: the
+        caller hands over arrays it does not change afterwards.
+        """
+        row = cols["row"]
+        n = len(row.index) if isinstance(row, _Take) else len(row)
         if n:
             self._cache = None
-            self._blocks.append({k: cols[k] for k in _ISSUE_FIELDS})
+            self._blocks.append((n, {k: _block_field(cols[k]) for k in _ISSUE_FIELDS}))
+            self._len += n
 
     def _items(self) -> list[RowIssue]:
         if self._cache is None:
@@ -228,29 +293,22 @@ class IssueList(Sequence[RowIssue]):
             for b in self._blocks:
                 if isinstance(b, list):
                     out.extend(b)
-                else:
-                    rows = b["row"].tolist()
-                    out.extend(
-                        RowIssue(f, sh, r, c, v, why, t, pt)
-                        for f, sh, r, c, v, why, t, pt in zip(
-                            b["file"],
-                            b["sheet"],
-                            rows,
-                            b["column"],
-                            b["value"],
-                            b["reason"],
-                            b["table"],
-                            b["part"],
+                    continue
+                n, f = b
+                out.extend(
+                    itertools.starmap(
+                        RowIssue,
+                        zip(
+                            *(_field_values(f[k], n) for k in _ISSUE_FIELDS),
                             strict=True,
-                        )
+                        ),
                     )
+                )
             self._cache = out
         return self._cache
 
     def __len__(self) -> int:
-        return sum(
-            len(b) if isinstance(b, list) else len(b["row"]) for b in self._blocks
-        )
+        return self._len
 
     def __getitem__(self, i):  # type: ignore[override]
         return self._items()[i]
@@ -286,10 +344,11 @@ class IssueList(Sequence[RowIssue]):
                         )
                     )
             else:
+                n, f = b
                 parts.append(
                     pd.DataFrame(
                         {
-                            k: pd.Series(np.asarray(b[k], dtype=object), dtype=object)
+                            k: pd.Series(_field_array(f[k], n), dtype=object)
                             for k in _ISSUE_FIELDS
                         }
                     )
@@ -589,6 +648,13 @@ def _match_pattern(schema: TableSchema, base: str) -> tuple[PatternSpec, str] | 
     return None
 
 
+@functools.lru_cache(maxsize=1024)
+def _unit_problem(text: str, target: str) -> str | None:
+    """:func:`~selector.units.check_unit`, remembered (headers repeat across files)."""
+    return check_unit(text, target)
+
+
+@functools.lru_cache(maxsize=1024)
 def _parse_param(p: PatternSpec, text: str) -> float | None:
     t = re.sub(
         r"^\s*(?:vgs|vge|v_gs|v|airflow|v_air|air)\s*=\s*", "", text, flags=re.I
@@ -598,7 +664,10 @@ def _parse_param(p: PatternSpec, text: str) -> float | None:
         val = to_si(t, p.param_unit)
     except Exception:  # noqa: BLE001 - any unparseable parameter
         return None
-    if check_unit(t.lstrip("0123456789.,+-± ") or p.param_unit, p.param_si) is not None:
+    if (
+        _unit_problem(t.lstrip("0123456789.,+-± ") or p.param_unit, p.param_si)
+        is not None
+    ):
         return None
     return float(val)
 
@@ -634,7 +703,7 @@ def _match_header(schema: TableSchema, header: str) -> _HeaderMatch:
             name2 = schema.alias_map.get(fold_header(m["name"]))
             if (
                 name2 is not None
-                and check_unit(m["unit"], schema.column_map[name2].si_unit or "")
+                and _unit_problem(m["unit"], schema.column_map[name2].si_unit or "")
                 is None
             ):
                 return _HeaderMatch(
@@ -757,6 +826,49 @@ def _decode(name: str, data: bytes) -> tuple[str, str]:
         return data.decode("latin-1"), "latin-1"
 
 
+_PREFIX_BYTES = 1 << 20  # decoded up front; the rest only when a path needs it
+_DECODE_CHUNK = 1 << 16
+
+
+def _decode_prefix(name: str, data: bytes) -> tuple[str, str, Any, bool]:
+    """As :func:`_decode`, but for a large UTF-8 file only the first MiB as text.
+
+    Returns (text, encoding, whole, complete): ``whole()`` gives the whole text
+    (decoded on the first call); ``text`` is all of it (``complete``) or a prefix of at
+    least 256 Ki characters. The whole file is still checked to be valid UTF-8 (in
+    chunks, without keeping them), so the encoding is the one :func:`_decode` picks.
+    """
+    if (
+        len(data) <= 2 * _PREFIX_BYTES
+        or data.startswith((codecs.BOM_UTF16_LE, codecs.BOM_UTF16_BE))
+        or b"\x00" in data[:4096]
+    ):
+        text, encoding = _decode(name, data)
+        return text, encoding, lambda: text, True
+    codec = "utf-8-sig" if data.startswith(codecs.BOM_UTF8) else "utf-8"
+    decoder = codecs.getincrementaldecoder(codec)()
+    view = memoryview(data)
+    parts = []
+    try:
+        for i in range(0, len(data), _DECODE_CHUNK):
+            piece = decoder.decode(view[i : i + _DECODE_CHUNK])
+            if i < _PREFIX_BYTES:
+                parts.append(piece)
+        decoder.decode(b"", final=True)
+    except UnicodeDecodeError:  # not UTF-8: the fallbacks of _decode
+        text, encoding = _decode(name, data)
+        return text, encoding, lambda: text, True
+    cache: list[str] = []
+
+    def whole() -> str:
+        if not cache:
+            cache.append(data.decode(codec))
+        return cache[0]
+
+    encoding = "utf-8 (with BOM)" if codec == "utf-8-sig" else "utf-8"
+    return "".join(parts), encoding, whole, False
+
+
 def _sniff_separator(lines: list[str]) -> str:
     best, best_score = ",", -1.0
     sample = [ln for ln in lines if ln.strip()][:40]
@@ -797,12 +909,14 @@ def _above_header(
 
 
 def _read_csv(name: str, data: bytes) -> tuple[_Piece, dict, list[RowIssue]]:
-    text, encoding = _decode(name, data)
+    text, encoding, whole, complete = _decode_prefix(name, data)
     codec = _CODECS.get(encoding)
-    if not text.strip():
+    if not complete and text.isspace():  # only blanks so far: look at all of it
+        text, complete = whole(), True
+    if not text or text.isspace():
         raise _loc_error("file is empty", file=name)
     head = text[:65536]
-    ctrl = sum(1 for ch in head[:8192] if ord(ch) < 32 and ch not in "\t\r\n")
+    ctrl = len(_CONTROL_CHAR_RE.findall(head, 0, 8192))
     if ctrl > max(8, len(head[:8192]) // 100):
         raise _loc_error(
             "not a CSV text file or an .xlsx workbook (binary data)", file=name
@@ -817,9 +931,20 @@ def _read_csv(name: str, data: bytes) -> tuple[_Piece, dict, list[RowIssue]]:
     if h is None:
         raise _loc_error("file is empty", file=name)
     headers = [c.strip() for c in first[h]]
-    body = text.split("\n", h + 1)[h + 1] if text.count("\n") > h else ""
+    # the body starts after the header's line (no copy of it unless needed)
+    while True:
+        start = 0
+        for _ in range(h + 1):
+            k = text.find("\n", start)
+            if k < 0:
+                start = len(text)
+                break
+            start = k + 1
+        if complete or start + 262144 < len(text):
+            break
+        text, complete = whole(), True  # the prefix ends too soon: use all of it
     # decimal mark: from the cells, never guessed against the evidence
-    sample = body[:262144]
+    sample = text[start : start + 262144]
     comma_ev = sep != "," and _DEC_COMMA_EVIDENCE_RE.search(sample) is not None
     point_re = (
         _DEC_POINT_EVIDENCE_COMMA_SEP_RE if sep == "," else _DEC_POINT_EVIDENCE_RE
@@ -832,7 +957,9 @@ def _read_csv(name: str, data: bytes) -> tuple[_Piece, dict, list[RowIssue]]:
         decimal = "."
     else:
         decimal = None
-    all_text = decimal is None and _has_ambiguous_dot(body)
+    if decimal is None:
+        text, complete = whole(), True
+    all_text = decimal is None and _has_ambiguous_dot(text[start:])
     ncol = max(len(headers), 1)
     frame: pd.DataFrame
     extra = None
@@ -841,21 +968,26 @@ def _read_csv(name: str, data: bytes) -> tuple[_Piece, dict, list[RowIssue]]:
             raise ValueError("read as text")
         # the C parser reads the bytes itself (much faster than a decoded StringIO);
         # a lone carriage return above the body would shift its line count: use text
-        head_part = text[: len(text) - len(body)]
+        head_part = text[:start]
         lone_cr = "\r" in head_part.replace("\r\n", "")
         source: Any = (
-            io.StringIO(body) if lone_cr or codec is None else io.BytesIO(data)
+            io.StringIO(whole()[start:])
+            if lone_cr or codec is None
+            else io.BytesIO(data)
         )
         skip = 0 if isinstance(source, io.StringIO) else h + 1
+        # a header on the first line without quotes is the parser's first record:
+        # reading it as the (replaced) header is much faster than skipping a row
+        as_header = skip == 1 and '"' not in head_lines[0]
         with warnings.catch_warnings():
             # extra cells must not be cut silently
             warnings.simplefilter("error", pd.errors.ParserWarning)
             frame = pd.read_csv(
                 source,
                 encoding=None if isinstance(source, io.StringIO) else codec,
-                skiprows=skip,
+                skiprows=None if as_header else skip,
                 sep=sep,
-                header=None,
+                header=0 if as_header else None,
                 names=list(range(ncol)),
                 index_col=False,
                 decimal="," if decimal == "," else ".",
@@ -874,7 +1006,7 @@ def _read_csv(name: str, data: bytes) -> tuple[_Piece, dict, list[RowIssue]]:
         OverflowError,
     ):
         try:
-            records = list(csv.reader(io.StringIO(body), delimiter=sep))
+            records = list(csv.reader(io.StringIO(whole()[start:]), delimiter=sep))
         except csv.Error as exc:
             raise _loc_error(f"not a readable CSV file ({exc})", file=name) from None
         extra = np.array(
@@ -1067,7 +1199,7 @@ def _read_xlsx(name: str, data: bytes) -> tuple[list[_Piece], dict, list[RowIssu
 
 
 def _read_source(name: str, data: bytes) -> tuple[list[_Piece], dict, list[RowIssue]]:
-    if not data or not data.strip():
+    if not data or data.isspace():
         raise _loc_error("file is empty", file=name)
     if data.startswith(_OLE2_MAGIC):
         if _ENCRYPTED_MARK in data:
@@ -1178,16 +1310,87 @@ def _text_array(col: pd.Series) -> np.ndarray:
     return out
 
 
-def _text_array_fast(col: pd.Series) -> np.ndarray:
+def _arrow_of(col: pd.Series) -> Any:
+    """The pyarrow array behind a pyarrow-backed text column, else None."""
+    dtype = col.dtype
+    if not (isinstance(dtype, pd.StringDtype) and dtype.storage == "pyarrow"):
+        return None
+    try:
+        import pyarrow as pa
+
+        return pa.array(col.array)
+    except Exception:  # noqa: BLE001 - no arrow view: the callers use numpy
+        return None
+
+
+def _text_array_fast(
+    col: pd.Series,
+) -> tuple[np.ndarray, np.ndarray | None, Any]:
+    """:func:`_text_array`, fast for text columns.
+
+    Also returns the blank mask and the text as a pyarrow array (blank is null) when
+    the column is pyarrow-backed text, else None for both.
+    """
     if col.dtype != object and pd.api.types.is_string_dtype(col.dtype):
-        arr = col.str.strip().to_numpy(dtype=object, na_value=None)
-        arr[arr == ""] = None
-        return arr
-    return _text_array(col)
+        stripped = col.str.strip()
+        arr = stripped.to_numpy(dtype=object, na_value=None)
+        blank = stripped.isna().to_numpy(dtype=bool)
+        arrow = _arrow_of(stripped)
+        if arrow is not None:
+            import pyarrow as pa
+            import pyarrow.compute as pc
+
+            is_empty = pc.fill_null(pc.equal(arrow, ""), False)
+            empty = is_empty.to_numpy(zero_copy_only=False).astype(bool, copy=False)
+            if empty.any():
+                arrow = pc.if_else(is_empty, pa.scalar(None, pa.string()), arrow)
+        else:
+            empty = (stripped.str.len() == 0).to_numpy(dtype=bool, na_value=False)
+        if empty.any():
+            if not arr.flags.writeable:
+                arr = arr.copy()
+            arr[empty] = None
+            blank = blank | empty
+        return arr, blank, arrow
+    return _text_array(col), None, None
+
+
+def _factor_arrow_text(arrow: Any) -> tuple[np.ndarray, list]:
+    """:func:`_factor_text` of a pyarrow text array: encode the raw texts, then strip
+    only the (few) distinct ones and merge those that become equal."""
+    import pyarrow as pa
+    import pyarrow.compute as pc
+
+    enc = pc.dictionary_encode(arrow)
+    if isinstance(enc, pa.ChunkedArray):
+        enc = enc.combine_chunks()  # one dictionary, values in order of appearance
+    raw = pc.fill_null(enc.indices, -1).to_numpy(zero_copy_only=False)
+    stripped = pc.utf8_trim_whitespace(enc.dictionary).to_pylist()
+    first: dict[str, int] = {}
+    uniq: list[str] = []
+    lut = np.empty(len(stripped) + 1, dtype=np.int64)
+    lut[-1] = -1  # blank cells (raw code -1)
+    for k, v in enumerate(stripped):
+        if v not in first:
+            first[v] = len(uniq)
+            uniq.append(v)
+        lut[k] = first[v]
+    if "" in first:  # blank after stripping: blank (kept in uniq, as pandas' way does)
+        lut[lut == first[""]] = -1
+    return lut[raw.astype(np.int64, copy=False)], uniq
 
 
 def _factor_text(col: pd.Series) -> tuple[np.ndarray, list]:
-    """Codes and distinct stripped texts of a text column (-1 for blank cells)."""
+    """Codes and distinct stripped texts of a text column (-1 for blank cells).
+
+    As ``pd.factorize(col.str.strip())``: the distinct texts in order of appearance.
+    """
+    arrow = _arrow_of(col)
+    if arrow is not None:
+        try:
+            return _factor_arrow_text(arrow)
+        except Exception:  # noqa: BLE001 - pandas' own way below
+            pass
     if col.dtype != object and pd.api.types.is_string_dtype(col.dtype):
         codes, uniq = pd.factorize(col.str.strip(), use_na_sentinel=True)
         uniq = [str(u) for u in uniq]
@@ -1208,10 +1411,15 @@ def _blank_mask(frame: pd.DataFrame) -> np.ndarray:
     text_cols = []
     for c in frame.columns:
         col = frame[c]
-        if col.dtype.kind in "iufb":
+        if col.dtype.kind == "f" and isinstance(col.dtype, np.dtype):
+            nonblank |= ~np.isnan(col.to_numpy())
+        elif col.dtype.kind in "iufb":
             nonblank |= col.notna().to_numpy()
         else:
             text_cols.append(c)
+            continue
+        if nonblank.all():  # every row has a number: no row is blank
+            return ~nonblank
     cand = np.flatnonzero(~nonblank)
     if len(cand) and text_cols:
         sub = frame.iloc[cand]
@@ -1239,6 +1447,10 @@ class _Parsed:
     problems: dict[
         int, list[tuple[str | None, Any, str]]
     ]  # row -> (column label, value, reason)
+    arrow_part: Any = None  # part ids as a pyarrow string array (null: blank), if made
+    # kind, package: per row a code into a lookup table of normalised values (-1: blank)
+    lut_codes: dict[str, tuple[np.ndarray, np.ndarray]] = field(default_factory=dict)
+    nulls: dict[str, np.ndarray] = field(default_factory=dict)  # blank masks, text
 
 
 def _parse_piece(
@@ -1281,7 +1493,7 @@ def _parse_piece(
         if m.kind == "column" and m.unit is not None:
             spec = schema.column_map[m.name]
             if spec.is_quantity:
-                why = check_unit(m.unit, spec.si_unit or "")
+                why = _unit_problem(m.unit, spec.si_unit or "")
                 if why is not None:
                     raise _loc_error(
                         f"unit in header: {why}",
@@ -1292,7 +1504,7 @@ def _parse_piece(
                     )
         if m.kind == "pattern" and m.unit is not None:
             p = next(p for p in schema.patterns if p.name == m.name)
-            why = check_unit(m.unit, p.si_unit)
+            why = _unit_problem(m.unit, p.si_unit)
             if why is not None:
                 raise _loc_error(
                     f"unit in header: {why}",
@@ -1366,7 +1578,11 @@ def _parse_piece(
         return out
 
     kind_arr = None
+    kind_lut: np.ndarray | None = None
     codes_of: dict[str, tuple[np.ndarray, list]] = {}
+    nulls: dict[str, np.ndarray] = {}  # blank masks of text columns, where known
+    arrow_part = None
+    lut_codes: dict[str, tuple[np.ndarray, np.ndarray]] = {}
     for spec in schema.columns:
         if spec.name not in present:
             continue
@@ -1415,8 +1631,12 @@ def _parse_piece(
             values[spec.name] = vals
         else:
             if spec.dtype == "str" and spec.name not in ("kind", "package", "tab"):
-                txt = _text_array_fast(col)
+                txt, txt_blank, txt_arrow = _text_array_fast(col)
                 values[spec.name] = txt
+                if txt_blank is not None:
+                    nulls[spec.name] = txt_blank
+                if spec.name == "part":
+                    arrow_part = txt_arrow
                 continue
             codes, uniq = _factor_text(col)
             codes_of[spec.name] = (codes, uniq)
@@ -1428,6 +1648,7 @@ def _parse_piece(
                     if why is not None:
                         add(codes == k, m.label, uniq[k], why)
                 values[spec.name] = lut[codes]
+                nulls[spec.name] = pd.isna(lut)[codes]
             elif spec.dtype == "list":
                 lut = np.empty(len(uniq) + 1, dtype=object)
                 for k, u in enumerate(uniq):
@@ -1435,6 +1656,7 @@ def _parse_piece(
                     items = tuple(dict.fromkeys(x for x in items if x))
                     lut[k] = items if items else None
                 values[spec.name] = lut[codes]
+                nulls[spec.name] = pd.isna(lut)[codes]
             elif spec.name == "kind":
                 norm = (
                     normalise_switch_kind
@@ -1448,16 +1670,28 @@ def _parse_piece(
                     if why is not None:
                         add(codes == k, m.label, u, why)
                 values["kind"] = lut[codes]
+                nulls["kind"] = pd.isna(lut)[codes]
                 kind_arr = values["kind"]
+                kind_lut = lut
+                lut_codes["kind"] = (codes, lut)
             elif spec.name == "package":
                 lut = np.array(
                     [normalise_package(u) for u in uniq] + [None], dtype=object
                 )
                 values[spec.name] = lut[codes]
+                nulls[spec.name] = pd.isna(lut)[codes]
+                lut_codes[spec.name] = (codes, lut)
     if "tab" in codes_of:
         tcodes, tuniq = codes_of["tab"]
-        kinds_ = kind_arr if kind_arr is not None else np.full(n, None, dtype=object)
-        kcodes, kuniq = pd.factorize(kinds_, use_na_sentinel=True)
+        if kind_lut is not None:
+            # the kinds' own codes, through their (small) lookup table
+            lcodes, kuniq = pd.factorize(kind_lut, use_na_sentinel=True)
+            kcodes = lcodes[codes_of["kind"][0]]
+        else:
+            kinds_ = (
+                kind_arr if kind_arr is not None else np.full(n, None, dtype=object)
+            )
+            kcodes, kuniq = pd.factorize(kinds_, use_na_sentinel=True)
         kuniq = list(kuniq) + [None]
         kk = len(kuniq)
         kc = np.where(kcodes < 0, kk - 1, kcodes).astype(np.int64)
@@ -1473,6 +1707,7 @@ def _parse_piece(
             if why is not None:
                 add(inv_ == k, headers["tab"], t_txt, why)
         values["tab"] = lut[inv_]
+        nulls["tab"] = pd.isna(lut)[inv_]
 
     pats: list[tuple[PatternSpec, float, str, np.ndarray]] = []
     for j, m in matches:
@@ -1510,6 +1745,19 @@ def _parse_piece(
 
     # required values, per kind
     kinds = values.get("kind")
+    kind_masks: dict[tuple[str, ...], np.ndarray] = {}
+
+    def kind_in(required: tuple[str, ...]) -> np.ndarray:
+        """Rows whose kind is one of ``required`` (as ``np.isin`` on the kind text)."""
+        got = kind_masks.get(required)
+        if got is None:
+            if kind_lut is not None and kinds is kind_arr:
+                got = np.isin(kind_lut.astype(str), required)[codes_of["kind"][0]]
+            else:
+                got = np.isin(kinds.astype(str), required)
+            kind_masks[required] = got
+        return got
+
     for spec in schema.columns:
         if spec.required is False:
             continue
@@ -1518,13 +1766,14 @@ def _parse_piece(
         if have is None:
             missing_v = np.ones(n, dtype=bool)
         elif have.dtype == object:
-            missing_v = pd.isna(have)
+            known = nulls.get(spec.name)
+            missing_v = known.copy() if known is not None else pd.isna(have)
         else:
             missing_v = np.isnan(have)
         if spec.required is not True:
             if kinds is None:
                 continue
-            missing_v &= np.isin(kinds.astype(str), spec.required)
+            missing_v &= kind_in(spec.required)
         if spec.name == "kind":
             continue  # reported by the kind normaliser
         missing_v &= ~failed(label)
@@ -1537,7 +1786,7 @@ def _parse_piece(
     for p in schema.patterns:
         if not p.required or kinds is None:
             continue
-        need = np.isin(kinds.astype(str), p.required)
+        need = kind_in(p.required)
         mine = [v for (pp, _param, _label, v) in pats if pp is p]
         has_any = np.zeros(n, dtype=bool)
         for v in mine:
@@ -1569,21 +1818,28 @@ def _parse_piece(
                 None,
                 f"missing value: {schema.one_of_reason}",
             )
-    return _Parsed(piece, idx, values, headers, pats, blank, problems)
+    return _Parsed(
+        piece, idx, values, headers, pats, blank, problems, arrow_part, lut_codes, nulls
+    )
 
 
 # =============================================================================== assembly
 
+_EMPTY_TABLES: dict[str, pd.DataFrame] = {}
+
 
 def _empty_table(schema: TableSchema) -> pd.DataFrame:
-    cols: dict[str, pd.Series] = {}
-    for c in schema.columns:
-        dtype = float if c.is_quantity else (bool if c.dtype == "bool" else object)
-        cols[c.name] = pd.Series([], dtype=dtype)
-    cols["source_file"] = pd.Series([], dtype=object)
-    cols["source_sheet"] = pd.Series([], dtype=object)
-    cols["source_row"] = pd.Series([], dtype="int64")
-    return pd.DataFrame(cols)
+    tmpl = _EMPTY_TABLES.get(schema.name)
+    if tmpl is None:
+        cols: dict[str, pd.Series] = {}
+        for c in schema.columns:
+            dtype = float if c.is_quantity else (bool if c.dtype == "bool" else object)
+            cols[c.name] = pd.Series([], dtype=dtype)
+        cols["source_file"] = pd.Series([], dtype=object)
+        cols["source_sheet"] = pd.Series([], dtype=object)
+        cols["source_row"] = pd.Series([], dtype="int64")
+        tmpl = _EMPTY_TABLES[schema.name] = pd.DataFrame(cols)
+    return tmpl.copy(deep=True)
 
 
 def _obj(a: Any, n: int | None = None) -> np.ndarray:
@@ -1597,7 +1853,30 @@ def _obj(a: Any, n: int | None = None) -> np.ndarray:
     return np.asarray(a, dtype=object)
 
 
-_Src = tuple  # (files, sheets, rows, parts) of an assembled table, as arrays
+_VARIES = object()
+
+
+class _Src:
+    """Where each row of an assembled table comes from: file, sheet, row number, part.
+
+    ``file`` and ``sheet`` hold the one file (sheet) of every row when the table came
+    from one piece, so issues can share it instead of repeating it per row. The arrays
+    are the source's own (never a table's column): issues read them lazily.
+    """
+
+    __slots__ = ("files", "sheets", "rows", "parts", "file", "sheet")
+
+    def __init__(
+        self,
+        files: np.ndarray,
+        sheets: np.ndarray,
+        rows: np.ndarray,
+        parts: np.ndarray,
+        file: Any = _VARIES,
+        sheet: Any = _VARIES,
+    ) -> None:
+        self.files, self.sheets, self.rows, self.parts = files, sheets, rows, parts
+        self.file, self.sheet = file, sheet
 
 
 def _add_block(
@@ -1609,33 +1888,156 @@ def _add_block(
     value: Any,
     reason: Any,
 ) -> None:
-    """Append issues for rows ``pos`` of an assembled table, column-wise."""
+    """Append issues for rows ``pos`` of an assembled table, column-wise.
+
+    ``column``, ``value`` and ``reason`` are one entry per row in ``pos`` or a single
+    value for all of them.
+    """
     if len(pos) == 0:
         return
-    n = len(pos)
     target.add_columns(
-        file=src[0][pos],
-        sheet=src[1][pos],
-        row=src[2][pos],
-        column=_obj(column, n),
-        value=_obj(value, n),
-        reason=_obj(reason, n),
-        table=_obj(table, n),
-        part=src[3][pos],
+        file=_Take(src.files, pos) if src.file is _VARIES else src.file,
+        sheet=_Take(src.sheets, pos) if src.sheet is _VARIES else src.sheet,
+        row=_Take(src.rows, pos),
+        column=column,
+        value=value,
+        reason=reason,
+        table=table,
+        part=_Take(src.parts, pos),
     )
+
+
+class _Points:
+    """Pattern values (``rds_on@VGS``, ``rth_sa@AIRFLOW``) of accepted rows.
+
+    Kept as one block per pattern column: ``[pattern name, parameter (SI), header label,
+    rows of the assembled table, values (SI)]``, in the order of the columns.
+    """
+
+    def __init__(self, blocks: list[list[Any]]) -> None:
+        self.blocks = blocks
+
+    def __len__(self) -> int:
+        return sum(len(b[3]) for b in self.blocks)
+
+    def of(self, name: str) -> tuple[np.ndarray, ...]:
+        """One pattern, block after block: rows, parameters, values, and the rank of
+        each parameter among the pattern's distinct parameters (with their count)."""
+        bl = [b for b in self.blocks if b[0] == name]
+        if not bl:
+            empty = np.zeros(0, dtype=np.int64)
+            return empty, np.zeros(0), np.zeros(0), empty, 0
+        lens = [len(b[3]) for b in bl]
+        bparams = np.array([b[1] for b in bl], dtype=float)
+        levels, bcode = np.unique(bparams, return_inverse=True)
+        rows = np.concatenate([b[3] for b in bl])
+        params = np.repeat(bparams, lens)
+        vals = np.concatenate([b[4] for b in bl])
+        return rows, params, vals, np.repeat(bcode, lens), len(levels)
+
+
+def _pair_order(
+    first: np.ndarray,
+    second: np.ndarray,
+    code: np.ndarray,
+    levels: int,
+    runs: bool = False,
+) -> np.ndarray:
+    """The order of ``np.lexsort((second, first))``: by ``first``, then ``second``.
+
+    ``first`` holds non-negative integers; ``code`` ranks ``second`` among its
+    ``levels`` distinct values, so ``first * levels + code`` orders the pairs. With
+    ``runs`` (``first`` rising within each block) a stable sort of that key merges the
+    blocks; otherwise a counting sort places distinct pairs without comparing them.
+    """
+    n = len(first)
+    if n == 0:
+        return np.zeros(0, dtype=np.int64)
+    top = int(first.max()) + 1
+    if first.min() < 0 or top > (2**62) // max(levels, 1):
+        return np.lexsort((second, first))
+    key = first.astype(np.int64) * levels + code
+    if runs or top * levels > 4 * n + 4096:
+        return np.argsort(key, kind="stable")
+    slot = np.full(top * levels, -1, dtype=np.int64)
+    slot[key] = np.arange(n)
+    order = slot[slot >= 0]
+    if len(order) != n:  # repeated pairs: a stable sort keeps lexsort's order of ties
+        return np.argsort(key, kind="stable")
+    return order
+
+
+def _arrow_text(values: np.ndarray) -> Any:
+    """An object array of text (None for blank) as a pyarrow string array, or None."""
+    try:
+        import pyarrow as pa
+
+        return pa.array(values, type=pa.string(), from_pandas=True)
+    except Exception:  # noqa: BLE001 - no pyarrow, or text arrow cannot hold
+        return None
+
+
+def _strictly_rising(arr: Any) -> bool:
+    """True when a pyarrow string array without nulls is in strictly rising order."""
+    import pyarrow.compute as pc
+
+    n = len(arr)
+    if n < 2:
+        return True
+    if arr.null_count:
+        return False
+    return pc.all(pc.less(arr.slice(0, n - 1), arr.slice(1))).as_py() is True
+
+
+def _ids_surely_unique(parts: np.ndarray, valid: np.ndarray, arrow: Any) -> bool:
+    """True when the part ids in ``valid`` rows are distinct after ``str.casefold``.
+
+    False means "maybe not": the caller then runs the exact duplicate check.
+    """
+    sel = parts[valid] if not valid.all() else parts
+    if len(sel) < 2:
+        return True
+    if arrow is not None:
+        try:
+            import pyarrow as pa
+            import pyarrow.compute as pc
+
+            arr = arrow if valid.all() else arrow.filter(pa.array(valid))
+            if pc.all(pc.string_is_ascii(arr)).as_py() is True:
+                # ASCII text: casefold is lower case; ids in rising order are distinct
+                low = pc.ascii_lower(arr)
+                if _strictly_rising(low):
+                    return True
+                return len(pc.unique(low)) == len(arr)
+        except Exception:  # noqa: BLE001 - fall back to Python's casefold
+            pass
+    try:
+        keys = [s.casefold() for s in sel.tolist()]
+    except AttributeError:
+        return False
+    return len(set(keys)) == len(keys)
 
 
 def _assemble(
     schema: TableSchema, parsed: list[_Parsed], report: InventoryReport
-) -> tuple[pd.DataFrame, pd.DataFrame, dict[str, int]]:
-    """Combine parsed pieces of one table: duplicates, accept/reject, warnings, defaults."""
+) -> tuple[pd.DataFrame, _Points, dict[str, int], Any]:
+    """Combine parsed pieces of one table: duplicates, accept/reject, warnings, defaults.
+
+    Returns the table, its pattern points, the row counts and the accepted part ids as
+    a pyarrow string array (None when not made).
+    """
     counts = {"accepted": 0, "rejected": 0, "blank": 0}
     if not parsed:
-        return _empty_table(schema), pd.DataFrame(), counts
+        return _empty_table(schema), _Points([]), counts, None
     n_tot = sum(len(p.idx) for p in parsed)
     blank = np.concatenate([p.blank for p in parsed])
-    files = np.concatenate([_obj(p.piece.file, len(p.idx)) for p in parsed])
-    sheets = np.concatenate([_obj(p.piece.sheet, len(p.idx)) for p in parsed])
+    one = len(parsed) == 1
+    if one:
+        files = _obj(parsed[0].piece.file, n_tot)
+        sheets = _obj(parsed[0].piece.sheet, n_tot)
+    else:
+        files = np.concatenate([_obj(p.piece.file, len(p.idx)) for p in parsed])
+        sheets = np.concatenate([_obj(p.piece.sheet, len(p.idx)) for p in parsed])
     rows = np.concatenate([p.piece.rows[p.idx] for p in parsed]).astype(np.int64)
     problems: dict[int, list[tuple[str | None, Any, str]]] = {}
     offset = 0
@@ -1644,52 +2046,91 @@ def _assemble(
             problems[i + offset] = pr
         offset += len(p.idx)
 
-    def col_values(name: str, spec: ColumnSpec | None) -> np.ndarray:
+    # columns a piece lacks are blank: one block of rows per piece and kind (numbers,
+    # text) instead of one allocation per column
+    blanks: dict[tuple[int, bool], list[np.ndarray]] = {}
+    for i, p in enumerate(parsed):
+        for quantity in (True, False):
+            k = sum(
+                1
+                for c in schema.columns
+                if c.is_quantity == quantity and c.name not in p.values
+            )
+            if k:
+                block = (
+                    np.full((k, len(p.idx)), np.nan)
+                    if quantity
+                    else np.full((k, len(p.idx)), None, dtype=object)
+                )
+                blanks[(i, quantity)] = list(block)
+
+    def col_values(name: str, spec: ColumnSpec) -> np.ndarray:
         parts = []
-        for p in parsed:
+        for i, p in enumerate(parsed):
             v = p.values.get(name)
             if v is None:
-                quantity = spec is not None and spec.is_quantity
-                v = (
-                    np.full(len(p.idx), np.nan)
-                    if quantity
-                    else np.full(len(p.idx), None, dtype=object)
-                )
+                v = blanks[(i, spec.is_quantity)].pop()
             parts.append(v)
         return np.concatenate(parts) if len(parts) > 1 else parts[0]
 
     values = {c.name: col_values(c.name, c) for c in schema.columns}
-    part_label = {id(p): p.headers.get("part", "part") for p in parsed}
-    part_labels = np.concatenate([_obj(part_label[id(p)], len(p.idx)) for p in parsed])
 
     # duplicate part ids: the first occurrence keeps the id
     parts = values["part"]
-    key = pd.Series(parts, dtype="str").str.casefold()
-    valid = key.notna().to_numpy() & ~blank
-    if valid.any():
-        kv = key[valid]
-        d = kv.duplicated(keep="first").to_numpy()
-        if d.any():
-            pos_valid = np.flatnonzero(valid)
-            first_pos: dict[str, int] = {}
-            for pos, k in zip(
-                pos_valid, kv.to_numpy(dtype=object, na_value=None), strict=True
-            ):
-                first_pos.setdefault(k, pos)
-            for pos in pos_valid[d]:
-                fp = first_pos[key.iat[pos]]
-                where = f"row {rows[fp]}"
-                if files[fp] != files[pos]:
-                    where += f" of {files[fp]}"
-                if sheets[fp] and sheets[fp] != sheets[pos]:
-                    where += f", sheet '{sheets[fp]}'"
-                problems.setdefault(int(pos), []).append(
-                    (
-                        part_labels[pos],
-                        parts[pos],
-                        f"duplicate part id (first on {where})",
-                    )
+    arrow_all = None
+    if all(p.arrow_part is not None for p in parsed):
+        import pyarrow as pa
+
+        if len(parsed) == 1:
+            arrow_all = parsed[0].arrow_part
+        else:
+            chunks = [
+                c.cast(pa.large_string())
+                for p in parsed
+                for c in (
+                    p.arrow_part.chunks
+                    if isinstance(p.arrow_part, pa.ChunkedArray)
+                    else [p.arrow_part]
                 )
+            ]
+            arrow_all = pa.chunked_array(chunks, type=pa.large_string())
+    elif n_tot >= 1000:
+        arrow_all = _arrow_text(parts)
+    if arrow_all is not None and len(arrow_all) == n_tot:
+        part_null = arrow_all.is_null().to_numpy(zero_copy_only=False).astype(bool)
+    else:
+        arrow_all = None
+        part_null = pd.isna(parts)
+    if not _ids_surely_unique(parts, ~part_null & ~blank, arrow_all):
+        part_labels = np.concatenate(
+            [_obj(p.headers.get("part", "part"), len(p.idx)) for p in parsed]
+        )
+        key = pd.Series(parts, dtype="str").str.casefold()
+        valid = key.notna().to_numpy() & ~blank
+        if valid.any():
+            kv = key[valid]
+            d = kv.duplicated(keep="first").to_numpy()
+            if d.any():
+                pos_valid = np.flatnonzero(valid)
+                first_pos: dict[str, int] = {}
+                for pos, k in zip(
+                    pos_valid, kv.to_numpy(dtype=object, na_value=None), strict=True
+                ):
+                    first_pos.setdefault(k, pos)
+                for pos in pos_valid[d]:
+                    fp = first_pos[key.iat[pos]]
+                    where = f"row {rows[fp]}"
+                    if files[fp] != files[pos]:
+                        where += f" of {files[fp]}"
+                    if sheets[fp] and sheets[fp] != sheets[pos]:
+                        where += f", sheet '{sheets[fp]}'"
+                    problems.setdefault(int(pos), []).append(
+                        (
+                            part_labels[pos],
+                            parts[pos],
+                            f"duplicate part id (first on {where})",
+                        )
+                    )
 
     rejected = np.zeros(n_tot, dtype=bool)
     if problems:
@@ -1719,28 +2160,72 @@ def _assemble(
             )
 
     acc = np.flatnonzero(accepted)
+    every = len(acc) == n_tot
+    # the arrays are fresh and one per column: the table takes them without a copy
     data: dict[str, Any] = {}
+    given: dict[str, np.ndarray] = {}  # the numeric columns as given (before defaults)
     for c in schema.columns:
-        v = values[c.name][acc]
+        v = values[c.name] if every else values[c.name][acc]
         if c.is_quantity:
-            data[c.name] = pd.Series(v.astype(float), copy=False)
+            given[c.name] = v = v.astype(float, copy=False)
+            data[c.name] = pd.Series(v, copy=False)
         else:
-            data[c.name] = pd.Series(v, dtype=object)
-    data["source_file"] = pd.Series(files[acc], dtype=object)
-    data["source_sheet"] = pd.Series(sheets[acc], dtype=object)
-    data["source_row"] = pd.Series(rows[acc], dtype=np.int64)
-    df = pd.DataFrame(data)
-    src = (files[acc], sheets[acc], rows[acc], values["part"][acc])
+            data[c.name] = pd.Series(v, dtype=object, copy=False)
+    files_acc = files if every else files[acc]
+    sheets_acc = sheets if every else sheets[acc]
+    rows_acc = rows[acc]  # a copy: the table's column and the issues' rows stay apart
+    data["source_file"] = pd.Series(files_acc, dtype=object, copy=False)
+    data["source_sheet"] = pd.Series(sheets_acc, dtype=object, copy=False)
+    data["source_row"] = pd.Series(rows_acc.copy(), dtype=np.int64, copy=False)
+    df = pd.DataFrame(data, copy=False)
+    # the issues read file, sheet and part lazily: from arrays apart from the table's
+    src = _Src(
+        files_acc if one else files_acc.copy(),
+        sheets_acc if one else sheets_acc.copy(),
+        rows_acc,
+        values["part"][acc],
+        file=parsed[0].piece.file if one else _VARIES,
+        sheet=parsed[0].piece.sheet if one else _VARIES,
+    )
+    arrow_acc = None
+    if arrow_all is not None:
+        arrow_acc = arrow_all if every else arrow_all.take(acc)
     present = {k for p in parsed for k in p.values} | {
         k for p in parsed for k in p.headers
     }
     if "insulating" in df and len(df):
         df["insulating"] = df["insulating"].astype(bool)
+    # kind and package as codes of their distinct values (rules, warnings)
+    keycodes: dict[str, tuple[np.ndarray, np.ndarray]] = {}
+    for k in ("kind", "package"):
+        if k not in df:
+            continue
+        if all(k in p.lut_codes for p in parsed):
+            # the pieces' lookup tables, merged: equal values get one code, blank -1
+            luts, codes_ = [], []
+            off = 0
+            for p in parsed:
+                pc_, plut = p.lut_codes[k]
+                # a blank cell (-1) points at the table's last entry (None) either way
+                codes_.append(
+                    pc_ if one else np.where(pc_ < 0, len(plut) - 1, pc_) + off
+                )
+                luts.append(plut)
+                off += len(plut)
+            lcodes, uk = pd.factorize(
+                np.concatenate(luts) if len(luts) > 1 else luts[0],
+                use_na_sentinel=True,
+            )
+            allc = np.concatenate(codes_) if len(codes_) > 1 else codes_[0]
+            ck = lcodes[allc if every else allc[acc]]
+        else:
+            ck, uk = pd.factorize(df[k].to_numpy(dtype=object), use_na_sentinel=True)
+        keycodes[k] = (np.asarray(ck, dtype=np.int64), np.asarray(uk, dtype=object))
 
-    # pattern points of accepted rows, as a long table (_row = row of df)
+    # pattern points of accepted rows (rows of df), one block per pattern column
     pos_to_acc = np.full(n_tot, -1, dtype=np.int64)
     pos_to_acc[acc] = np.arange(len(acc))
-    pts = []
+    blocks: list[list[Any]] = []
     offset = 0
     for p in parsed:
         for pat, param, label, vals in p.patterns:
@@ -1748,70 +2233,198 @@ def _assemble(
             pos = np.flatnonzero(ok) + offset
             keep = accepted[pos]
             if keep.any():
-                pts.append(
-                    pd.DataFrame(
-                        {
-                            "_row": pos_to_acc[pos[keep]],
-                            "pattern": pat.name,
-                            "param": param,
-                            "label": pd.Series(
-                                np.full(int(keep.sum()), label, dtype=object),
-                                dtype=object,
-                            ),
-                            "value": vals[ok][keep],
-                        }
-                    )
+                blocks.append(
+                    [pat.name, param, label, pos_to_acc[pos[keep]], vals[ok][keep]]
                 )
         offset += len(p.idx)
-    points = (
-        pd.concat(pts, ignore_index=True)
-        if pts
-        else pd.DataFrame(
-            {
-                "_row": pd.Series([], dtype=np.int64),
-                "pattern": pd.Series([], dtype=object),
-                "param": pd.Series([], dtype=float),
-                "label": pd.Series([], dtype=object),
-                "value": pd.Series([], dtype=float),
-            }
-        )
-    )
-    if schema.name == "switches" and len(points):
-        is_mos = df["kind"].isin(("nmos", "pmos")).to_numpy()[points["_row"].to_numpy()]
-        points = points[is_mos].reset_index(
-            drop=True
-        )  # IGBT rows: rds_on points unused
+    lowest = None
     if schema.name == "switches":
+        if blocks:  # IGBT rows: rds_on points unused
+            ck, uk = keycodes["kind"]
+            mos_lut = np.array([u in ("nmos", "pmos") for u in uk] + [False])
+            is_mos = mos_lut[ck]
+            for b in blocks:
+                m = is_mos[b[3]]
+                if not m.all():
+                    b[3], b[4] = b[3][m], b[4][m]
+            blocks = [b for b in blocks if len(b[3])]
         lowest = np.full(len(df), np.nan)
-        if len(points):
-            low = points.groupby("_row")["param"].min()
-            lowest[low.index.to_numpy()] = low.to_numpy()
-        df["_rds_lowest_vgs"] = lowest
+        for b in blocks:
+            lowest[b[3]] = np.fmin(lowest[b[3]], b[1])
+    points = _Points(blocks)
 
     label_of: dict[str, str] = {}
     for p in parsed:
         for k, v in p.headers.items():
             label_of.setdefault(k, v)
-    _warn_plausibility(schema, df, src, present, points, label_of, report)
-    _apply_defaults(schema, df, src, report)
+    _warn_plausibility(
+        schema, df, src, present, points, label_of, report, keycodes, given
+    )
+    # blank masks of the text columns that have defaults, where the pieces know them
+    text_nulls: dict[str, np.ndarray] = {}
+    for c in schema.columns:
+        if c.is_quantity or (
+            c.default is None and (schema.name, c.name) not in RULE_DEFAULTS
+        ):
+            continue
+        masks = []
+        for p in parsed:
+            if c.name in p.nulls:
+                masks.append(p.nulls[c.name])
+            elif c.name not in p.values:
+                masks.append(np.ones(len(p.idx), dtype=bool))
+            else:
+                masks.append(pd.isna(p.values[c.name]))
+        m_all = np.concatenate(masks) if len(masks) > 1 else masks[0]
+        text_nulls[c.name] = m_all if every else m_all[acc]
+    _apply_defaults(schema, df, src, report, keycodes, lowest, text_nulls)
     if schema.name == "switches":
-        _warn_switches(df, src, points, report, label_of)
-        df = df.drop(columns="_rds_lowest_vgs")
+        _warn_switches(df, src, points, report, label_of, lowest)
     elif schema.name == "heatsinks":
         _warn_heatsinks(df, src, points, report)
         df["positions"] = df["positions"].fillna(1).astype("int64")
-    points["part"] = (
-        src[3][points["_row"].to_numpy(dtype=np.int64)]
-        if len(points)
-        else pd.Series([], dtype=object)
-    )
-    return df.reset_index(drop=True), points, counts
+    return df.reset_index(drop=True), points, counts, arrow_acc
+
+
+def _small_codes(values: np.ndarray, most: int = 8) -> tuple[np.ndarray, int] | None:
+    """Codes of the distinct values (equal values, equal codes) when there are at most
+    ``most`` of them, found with a few whole-array comparisons; else None."""
+    n = len(values)
+    codes = np.zeros(n, dtype=np.int64)
+    if n == 0:
+        return codes, 0
+    left = np.arange(n)
+    sub = values
+    for k in range(most):
+        try:
+            same = sub == sub[0]
+        except Exception:  # noqa: BLE001 - not comparable element-wise
+            return None
+        if not isinstance(same, np.ndarray) or same.dtype != bool or not same[0]:
+            return None  # not comparable element-wise (or NaN): let factorize decide
+        if same.all():
+            if k:
+                codes[left] = k
+            return codes, k + 1
+        if k:
+            codes[left[same]] = k
+        keep = ~same
+        left = left[keep]
+        sub = sub[keep]
+    return None
+
+
+def _rule_reasons(
+    rule: Any,
+    fill: np.ndarray,
+    pos: np.ndarray,
+    key_codes: dict[str, tuple[np.ndarray, np.ndarray]],
+) -> Any:
+    """The rule's reason for every filled value; computed once per distinct
+    (value, kind, package). Returns an array or a :class:`_Take` of one."""
+    keycols = list(key_codes)
+    small = _small_codes(fill)
+    if small is not None:
+        vcodes, nv = small
+    else:
+        vcodes, uniq_v = pd.factorize(fill, use_na_sentinel=False)
+        nv = len(uniq_v)
+    combined = vcodes.astype(np.int64)
+    size = max(nv, 1)
+    for k in keycols:
+        ck, uk = key_codes[k]
+        combined = combined * (len(uk) + 1) + (ck[pos] + 1)
+        size *= len(uk) + 1
+    if size <= 4 * len(combined) + 4096:
+        # the groups are numbered densely enough to index a lookup table directly
+        first = np.full(size, -1, dtype=np.int64)
+        first[combined[::-1]] = np.arange(len(combined) - 1, -1, -1)
+        groups = np.flatnonzero(first >= 0)
+        inverse = combined
+    else:
+        inverse, uniq_combined = pd.factorize(combined)
+        first = np.empty(len(uniq_combined), dtype=np.int64)
+        first[inverse[::-1]] = np.arange(len(inverse) - 1, -1, -1)
+        groups = np.arange(len(uniq_combined))
+    lut = np.empty(len(first), dtype=object)
+    for g in groups:
+        f = first[g]
+        lut[g] = rule.reason(
+            fill[f],
+            {
+                "value": fill[f],
+                **{k: key_codes[k][1][key_codes[k][0][pos[f]]] for k in keycols},
+            },
+        )
+    return _Take(lut, inverse)
+
+
+class _KeyPairs:
+    """Every (kind, package) pair of a table as a small frame, and each row's pair.
+
+    A rule that reads only these columns gives the same value on a row as on its pair,
+    so it is computed on the pairs and looked up per row.
+    """
+
+    def __init__(
+        self, keycols: list[str], key_codes: dict[str, tuple[np.ndarray, np.ndarray]]
+    ) -> None:
+        self.keycols = keycols
+        self.values = [key_codes[k][1] for k in keycols]  # distinct values + None
+        sizes = [len(v) for v in self.values]
+        grid = np.indices(sizes).reshape(len(sizes), -1)
+        self.grid = grid
+        cols = {}
+        self.row_pair = np.zeros(len(key_codes[keycols[0]][0]), dtype=np.int64)
+        for k, size, g in zip(keycols, sizes, grid, strict=True):
+            codes_k = key_codes[k][0]
+            # the last slot of each column stands for blank (code -1)
+            self.row_pair = self.row_pair * size + np.where(
+                codes_k < 0, size - 1, codes_k
+            )
+            cols[k] = pd.Categorical.from_codes(
+                np.where(g == size - 1, -1, g),
+                categories=pd.Index(key_codes[k][1][:-1], dtype=object),
+            )
+        self.frame = pd.DataFrame(cols)
+
+    def compute(self, rule: Any) -> tuple[np.ndarray, np.ndarray]:
+        """The rule's value per pair, and whether it gives one."""
+        fill_s = rule.compute(self.frame)
+        if pd.api.types.is_float_dtype(fill_s.dtype):
+            fill = fill_s.to_numpy(dtype=float)
+            return fill, ~np.isnan(fill)
+        fill = fill_s.to_numpy(dtype=object)
+        return fill, pd.notna(fill)
+
+    def reasons(self, rule: Any, fill: np.ndarray, used: np.ndarray) -> np.ndarray:
+        """The rule's reason for each pair in ``used`` (None elsewhere)."""
+        out = np.empty(len(fill), dtype=object)
+        for g in used:
+            row = {
+                k: v[self.grid[j][g]]
+                for j, (k, v) in enumerate(zip(self.keycols, self.values, strict=True))
+            }
+            out[g] = rule.reason(fill[g], {"value": fill[g], **row})
+        return out
 
 
 def _apply_defaults(
-    schema: TableSchema, df: pd.DataFrame, src: _Src, report: InventoryReport
+    schema: TableSchema,
+    df: pd.DataFrame,
+    src: _Src,
+    report: InventoryReport,
+    keycodes: dict[str, tuple[np.ndarray, np.ndarray]],
+    lowest: np.ndarray | None = None,
+    text_nulls: dict[str, np.ndarray] | None = None,
 ) -> None:
-    """Fill blank cells from the schema's defaults; list every filled value as assumed."""
+    """Fill blank cells from the schema's defaults; list every filled value as assumed.
+
+    ``keycodes``: codes and distinct values of ``kind`` and ``package``; ``lowest``:
+    the lowest Rds(on) gate voltage per switch (the vgs_max rule reads it);
+    ``text_nulls``: blank masks of text columns, when known (else computed).
+    """
+    text_nulls = text_nulls or {}
     n = len(df)
     if n == 0:
         return
@@ -1820,71 +2433,68 @@ def _apply_defaults(
     # rules see kind and package as categoricals: comparisons work on small codes
     view = df.copy(deep=False)
     for k in keycols:
-        codes_k, uniq_k = pd.factorize(
-            df[k].to_numpy(dtype=object), use_na_sentinel=True
-        )
-        key_codes[k] = (codes_k, np.append(np.asarray(uniq_k, dtype=object), None))
+        codes_k, uniq_k = keycodes[k]
+        key_codes[k] = (codes_k, np.append(uniq_k, None))
         view[k] = pd.Categorical.from_codes(
             codes_k, categories=pd.Index(uniq_k, dtype=object)
         )
+    if lowest is not None:
+        view["_rds_lowest_vgs"] = lowest
+    pairs: _KeyPairs | None = None
     for c in schema.columns:
         rule = RULE_DEFAULTS.get((schema.name, c.name))
         if c.default is None and rule is None:
             continue
-        cur = df[c.name]
-        blank = cur.isna().to_numpy()
+        if c.is_quantity:
+            cur = df[c.name].to_numpy(dtype=float)
+            blank = np.isnan(cur)
+        else:
+            cur = df[c.name].to_numpy(dtype=object)
+            known = text_nulls.get(c.name)
+            blank = known if known is not None else pd.isna(cur)
         if not blank.any():
             continue
         if rule is None:
-            use = blank
-            pos = np.flatnonzero(use)
-            fill = _obj(c.default, len(pos))
-            reasons = _obj(c.default_reason, len(pos))
+            pos = np.flatnonzero(blank)
+            fill: Any = c.default
+            reasons: Any = c.default_reason
+        elif (
+            keycols
+            and getattr(rule, "reads", None) is not None
+            and set(rule.reads) <= set(keycols)
+        ):
+            # the rule reads only kind/package: compute it once per distinct pair
+            if pairs is None:
+                pairs = _KeyPairs(keycols, key_codes)
+            fill_p, has_p = pairs.compute(rule)
+            pos = np.flatnonzero(blank)
+            pos = pos[has_p[pairs.row_pair[pos]]]
+            if len(pos) == 0:
+                continue
+            at = pairs.row_pair[pos]
+            fill = fill_p[at]
+            reasons = _Take(pairs.reasons(rule, fill_p, np.unique(at)), at)
         else:
             fill_s = rule.compute(view)
-            numeric = pd.api.types.is_float_dtype(fill_s.dtype)
-            fill_all = (
-                fill_s.to_numpy(dtype=float)
-                if numeric
-                else fill_s.to_numpy(dtype=object)
-            )
-            use = blank & fill_s.notna().to_numpy()
-            pos = np.flatnonzero(use)
+            # the blank cells the rule has a value for
+            pos = np.flatnonzero(blank)
+            if pd.api.types.is_float_dtype(fill_s.dtype):
+                fill_all = fill_s.to_numpy(dtype=float)
+                pos = pos[~np.isnan(fill_all[pos])]
+            else:
+                fill_all = fill_s.to_numpy(dtype=object)
+                pos = pos[pd.notna(fill_all[pos])]
             if len(pos) == 0:
                 continue
             fill = fill_all[pos]
-            vcodes, _ = pd.factorize(fill, use_na_sentinel=False)
-            combined = vcodes.astype(np.int64)
-            for k in keycols:
-                ck, uk = key_codes[k]
-                combined = combined * (len(uk) + 1) + ck[pos]
-            inverse, uniq_combined = pd.factorize(combined)
-            first = np.empty(len(uniq_combined), dtype=np.int64)
-            first[inverse[::-1]] = np.arange(len(inverse) - 1, -1, -1)
-            lut = np.array(
-                [
-                    rule.reason(
-                        fill[f],
-                        {
-                            "value": fill[f],
-                            **{
-                                k: key_codes[k][1][key_codes[k][0][pos[f]]]
-                                for k in keycols
-                            },
-                        },
-                    )
-                    for f in first
-                ],
-                dtype=object,
-            )
-            reasons = lut[inverse]
+            reasons = _rule_reasons(rule, fill, pos, key_codes)
+        new = cur.copy()
         if c.is_quantity:
-            new = cur.to_numpy(dtype=float).copy()
             new[pos] = np.asarray(fill, dtype=float)
             df[c.name] = new
             view[c.name] = new
         else:
-            new = cur.to_numpy(dtype=object, na_value=None).copy()
+            new[blank] = None  # as to_numpy(na_value=None): every blank kind is None
             new[pos] = fill
             df[c.name] = pd.Series(new, dtype=object, index=df.index)
         _add_block(report.assumed, src, pos, schema.name, c.name, fill, reasons)
@@ -1925,7 +2535,7 @@ def _warn_rows(
     pos = np.flatnonzero(mask)
     if len(pos) == 0:
         return
-    raw_vals = np.asarray(values, dtype=object)[pos]
+    raw_vals = np.asarray(values)[pos].astype(object)
     reasons = [reason(v) for v in raw_vals] if callable(reason) else reason
     vals = (
         np.array([_show(float(v), unit) for v in raw_vals], dtype=object)
@@ -1940,17 +2550,26 @@ def _warn_plausibility(
     df: pd.DataFrame,
     src: _Src,
     present: set[str],
-    points: pd.DataFrame,
+    points: _Points,
     label_of: dict[str, str],
     report: InventoryReport,
+    keycodes: dict[str, tuple[np.ndarray, np.ndarray]],
+    given: dict[str, np.ndarray] | None = None,
 ) -> None:
-    """Values outside the schema's plausible range (given values only, before defaults)."""
+    """Values outside the schema's plausible range (given values only, before defaults).
+
+    ``given``: the table's numeric columns as arrays, when at hand (else read from df).
+    """
     if not len(df):
         return
     for c in schema.columns:
         if not c.is_quantity or c.plausible is None or c.name not in present:
             continue
-        v = df[c.name].to_numpy(dtype=float)
+        v = (
+            given[c.name]
+            if given is not None and c.name in given
+            else df[c.name].to_numpy(dtype=float)
+        )
         lo, hi = c.plausible
         with np.errstate(invalid="ignore"):
             bad = np.zeros(len(v), dtype=bool)
@@ -1977,22 +2596,27 @@ def _warn_plausibility(
     for p in schema.patterns:
         if p.plausible is None or not len(points):
             continue
-        sub = points[points["pattern"] == p.name]
         lo, hi = p.plausible
-        v = sub["value"].to_numpy(dtype=float)
-        bad = (v < lo) | (v > hi)
-        if bad.any():
-            rows_ = sub["_row"].to_numpy(dtype=np.int64)[bad]
+        # block by block: the warnings come in the order of the points
+        found = []
+        for name, _param, label, rows_b, v in points.blocks:
+            if name != p.name:
+                continue
+            bad = (v < lo) | (v > hi)
+            if bad.any():
+                found.append((rows_b[bad], label, v[bad]))
+        if found:
+            vbad = np.concatenate([f[2] for f in found])
             _add_block(
                 report.warnings,
                 src,
-                rows_,
+                np.concatenate([f[0] for f in found]),
                 schema.name,
-                sub["label"].to_numpy(dtype=object)[bad],
-                [_show(x, p.si_unit) for x in v[bad]],
+                np.concatenate([np.full(len(f[0]), f[1], dtype=object) for f in found]),
+                [_show(x, p.si_unit) for x in vbad],
                 [
                     f"implausible {_show(x, p.si_unit)} (expected {_show(lo, p.si_unit)} … {_show(hi, p.si_unit)}); check the value and its unit"
-                    for x in v[bad]
+                    for x in vbad
                 ],
             )
     if "fits" in df:
@@ -2011,40 +2635,46 @@ def _warn_plausibility(
                     f"package{'s' if len(unknown) > 1 else ''} {', '.join(repr(u) for u in unknown)} not known to the tool; kept as written",
                 )
     if "package" in df and schema.name == "switches":
-        pkg = df["package"].to_numpy(dtype=object, na_value=None)
-        unknown = (
-            df["package"].notna() & ~df["package"].isin(KNOWN_PACKAGES)
-        ).to_numpy()
-        _warn_rows(
-            report,
-            src,
-            unknown,
-            schema.name,
-            label_of.get("package", "package"),
-            pkg,
-            lambda p: (
-                f"package '{p}' is not one the tool knows; kept as written (no rth_ja or tab default)"
-            ),
-        )
+        codes, uniq = keycodes["package"]
+        lut = np.array([u not in KNOWN_PACKAGES for u in uniq] + [False], dtype=bool)
+        unknown = lut[codes]
+        if unknown.any():
+            _warn_rows(
+                report,
+                src,
+                unknown,
+                schema.name,
+                label_of.get("package", "package"),
+                df["package"].to_numpy(dtype=object, na_value=None),
+                lambda p: (
+                    f"package '{p}' is not one the tool knows; kept as written (no rth_ja or tab default)"
+                ),
+            )
 
 
 def _warn_switches(
     df: pd.DataFrame,
     src: _Src,
-    points: pd.DataFrame,
+    points: _Points,
     report: InventoryReport,
     label_of: dict[str, str],
+    lowest: np.ndarray,
 ) -> None:
-    """Cross-column checks of the switch table (after defaults)."""
+    """Cross-column checks of the switch table (after defaults).
+
+    ``lowest``: the lowest Rds(on) gate voltage of each row (NaN without Rds(on) points).
+    """
     if not len(df):
         return
     lab = label_of.get
     none = np.full(len(df), None, dtype=object)
+
     # IGBT energies need their test point; Foster terms come in pairs
-    e_any = df["e_on"].notna().to_numpy() | df["e_off"].notna().to_numpy()
-    no_pt = e_any & (
-        df["e_test_v"].isna().to_numpy() | df["e_test_i"].isna().to_numpy()
-    )
+    def nan(name: str) -> np.ndarray:
+        return np.isnan(df[name].to_numpy(dtype=float))
+
+    e_any = ~nan("e_on") | ~nan("e_off")
+    no_pt = e_any & (nan("e_test_v") | nan("e_test_i"))
     if no_pt.any():
         _warn_rows(
             report,
@@ -2056,9 +2686,9 @@ def _warn_switches(
             "switching energies without their test point (e_test_v, e_test_i) cannot be scaled; e_on and e_off are ignored",
         )
         df.loc[no_pt, ["e_on", "e_off"]] = np.nan
-    r = np.column_stack([df[f"zth_r{i}"].notna().to_numpy() for i in range(1, 6)])
-    t = np.column_stack([df[f"zth_tau{i}"].notna().to_numpy() for i in range(1, 6)])
-    unpaired = (r != t).any(axis=1)
+    unpaired = np.zeros(len(df), dtype=bool)
+    for i in range(1, 6):
+        unpaired |= nan(f"zth_r{i}") != nan(f"zth_tau{i}")
     if unpaired.any():
         _warn_rows(
             report,
@@ -2115,46 +2745,88 @@ def _warn_switches(
             lambda x: f"threshold {x:g} V is not below vgs_max; check the columns",
             unit="V",
         )
-    pr = points[points["pattern"] == "rds_on"] if len(points) else points
-    if len(pr):
-        order = np.lexsort(
-            (pr["param"].to_numpy(dtype=float), pr["_row"].to_numpy(dtype=np.int64))
-        )
-        pr = pr.iloc[order]
-        rowi = pr["_row"].to_numpy(dtype=np.int64)
-        vgs = pr["param"].to_numpy(dtype=float)
-        rds = pr["value"].to_numpy(dtype=float)
-        labels = pr["label"].to_numpy(dtype=object)
-        same = rowi[1:] == rowi[:-1]
-        rising = np.flatnonzero(same & (rds[1:] > rds[:-1] * (1 + 1e-9))) + 1
-        if len(rising):
+    blocks = [b for b in points.blocks if b[0] == "rds_on"]
+    if blocks:
+        levels = np.unique(np.array([b[1] for b in blocks], dtype=float))
+        # walk the gate voltages upwards: each point meets the previous one of its row
+        prev_val = np.full(len(df), np.nan)
+        prev_vgs = np.full(len(df), np.nan)
+        rising: list[tuple[np.ndarray, ...]] = []
+        over: list[tuple[np.ndarray, ...]] = []
+        for j, level in enumerate(levels):
+            for _name, param, label, rows_b, vals_b in blocks:
+                if param != level:
+                    continue
+                pv = prev_val[rows_b]
+                with np.errstate(invalid="ignore"):
+                    up = vals_b > pv * (1 + 1e-9)  # False where no previous point
+                if up.any():
+                    r_up = rows_b[up]
+                    rising.append(
+                        (
+                            r_up,
+                            j,
+                            label,
+                            vals_b[up],
+                            np.full(len(r_up), param),
+                            prev_vgs[r_up],
+                        )
+                    )
+                hi = param > vgsmax[rows_b] + 1e-9
+                if hi.any():
+                    over.append((rows_b[hi], j, label, vals_b[hi], param))
+                prev_val[rows_b] = vals_b
+                prev_vgs[rows_b] = param
+        nlev = len(levels)
+        if rising:
+            # in the order of the points sorted by row, then gate voltage
+            r_rows = np.concatenate([x[0] for x in rising])
+            key = r_rows * nlev + np.concatenate(
+                [np.full(len(x[0]), x[1]) for x in rising]
+            )
+            order = np.argsort(key, kind="stable")
+            r_lab = np.concatenate(
+                [np.full(len(x[0]), x[2], dtype=object) for x in rising]
+            )[order]
+            r_val = np.concatenate([x[3] for x in rising])[order]
+            r_vgs = np.concatenate([x[4] for x in rising])[order]
+            r_prev = np.concatenate([x[5] for x in rising])[order]
             _add_block(
                 report.warnings,
                 src,
-                rowi[rising],
+                r_rows[order],
                 "switches",
-                labels[rising],
-                [_show(x, "ohm") for x in rds[rising]],
+                r_lab,
+                [_show(x, "ohm") for x in r_val],
                 [
-                    f"Rds(on) at {vgs[k]:g} V is higher than at {vgs[k - 1]:g} V; it should fall as the gate voltage rises: check the columns"
-                    for k in rising
+                    f"Rds(on) at {v:g} V is higher than at {pv:g} V; it should fall as the gate voltage rises: check the columns"
+                    for v, pv in zip(r_vgs, r_prev, strict=True)
                 ],
             )
-        over = np.flatnonzero(vgs > vgsmax[rowi] + 1e-9)
-        if len(over):
+        if over:
+            o_rows = np.concatenate([x[0] for x in over])
+            key = o_rows * nlev + np.concatenate(
+                [np.full(len(x[0]), x[1]) for x in over]
+            )
+            order = np.argsort(key, kind="stable")
+            o_rows = o_rows[order]
+            o_lab = np.concatenate(
+                [np.full(len(x[0]), x[2], dtype=object) for x in over]
+            )[order]
+            o_val = np.concatenate([x[3] for x in over])[order]
+            o_vgs = np.concatenate([np.full(len(x[0]), x[4]) for x in over])[order]
             _add_block(
                 report.warnings,
                 src,
-                rowi[over],
+                o_rows,
                 "switches",
-                labels[over],
-                [_show(x, "ohm") for x in rds[over]],
+                o_lab,
+                [_show(x, "ohm") for x in o_val],
                 [
-                    f"given at {vgs[k]:g} V, above vgs_max {vgsmax[rowi[k]]:g} V"
-                    for k in over
+                    f"given at {v:g} V, above vgs_max {vgsmax[r]:g} V"
+                    for v, r in zip(o_vgs, o_rows, strict=True)
                 ],
             )
-        lowest = df["_rds_lowest_vgs"].to_numpy(dtype=float)
         with np.errstate(invalid="ignore"):
             bad = vth >= lowest - 1e-9
         _warn_rows(
@@ -2172,27 +2844,32 @@ def _warn_switches(
 
 
 def _warn_heatsinks(
-    df: pd.DataFrame, src: _Src, points: pd.DataFrame, report: InventoryReport
+    df: pd.DataFrame, src: _Src, points: _Points, report: InventoryReport
 ) -> None:
     if not len(points) or not len(df):
         return
     nat = df["rth_sa"].to_numpy(dtype=float)
-    sub = points[points["pattern"] == "rth_sa"]
-    rowi = sub["_row"].to_numpy(dtype=np.int64)
-    v = sub["value"].to_numpy(dtype=float)
-    with np.errstate(invalid="ignore"):
-        bad = v > nat[rowi] * (1 + 1e-9)
-    if bad.any():
+    found = []
+    for name, _param, label, rows_b, v in points.blocks:
+        if name != "rth_sa":
+            continue
+        with np.errstate(invalid="ignore"):
+            bad = v > nat[rows_b] * (1 + 1e-9)
+        if bad.any():
+            found.append((rows_b[bad], label, v[bad]))
+    if found:
+        rowi = np.concatenate([f[0] for f in found])
+        vbad = np.concatenate([f[2] for f in found])
         _add_block(
             report.warnings,
             src,
-            rowi[bad],
+            rowi,
             "heatsinks",
-            sub["label"].to_numpy(dtype=object)[bad],
-            [_show(x, "K/W") for x in v[bad]],
+            np.concatenate([np.full(len(f[0]), f[1], dtype=object) for f in found]),
+            [_show(x, "K/W") for x in vbad],
             [
                 f"{x:g} K/W with airflow is above the natural-convection rth_sa {nat[i]:g} K/W; check the columns"
-                for x, i in zip(v[bad], rowi[bad], strict=True)
+                for x, i in zip(vbad, rowi, strict=True)
             ],
         )
 
@@ -2205,6 +2882,72 @@ def _sorted_by_part(df: pd.DataFrame, second: str) -> pd.DataFrame:
     rank[np.argsort(names, kind="stable")] = np.arange(len(uniq))
     order = np.lexsort((df[second].to_numpy(dtype=float), rank[codes]))
     return df.iloc[order].reset_index(drop=True)
+
+
+@functools.cache
+def _inferred_text_dtype() -> Any:
+    """The dtype pandas gives a column built from an object array of text."""
+    return pd.Series(np.array(["a"], dtype=object)).dtype
+
+
+def _points_table(
+    points: _Points,
+    pattern: str,
+    param_col: str,
+    value_col: str,
+    parts: np.ndarray,
+    arrow_parts: Any,
+) -> pd.DataFrame | None:
+    """One pattern's points as a long table ``part, <param>, <value>`` sorted by part
+    then parameter; None when there are none.
+
+    ``parts``: the part id of each row of the table (object); ``arrow_parts``: the same
+    as a pyarrow string array, or None.
+    """
+    rows, params, vals, code, levels = points.of(pattern)
+    if not len(rows):
+        return None
+    # the table's part column is what pandas infers for text: build that from arrow
+    text_dtype = _inferred_text_dtype()
+    fast = (
+        arrow_parts is not None
+        and isinstance(text_dtype, pd.StringDtype)
+        and text_dtype.storage == "pyarrow"
+    )
+    if fast:
+        try:
+            import pyarrow.compute as pc
+
+            # numpy compares text without trailing NUL characters: keep its order
+            if (
+                arrow_parts.null_count
+                or pc.any(pc.ends_with(arrow_parts, "\x00")).as_py()
+            ):
+                raise ValueError("blank ids or text with trailing NUL")
+            if _strictly_rising(arrow_parts):  # rows already in id order
+                order = _pair_order(rows, params, code, levels, runs=True)
+            else:
+                # accepted part ids are distinct (duplicates are rejected), so a row's
+                # rank in the sorted ids orders the rows as the ids do
+                by_id = pc.sort_indices(arrow_parts).to_numpy()
+                rank = np.empty(len(by_id), dtype=np.int64)
+                rank[by_id] = np.arange(len(by_id))
+                order = _pair_order(rank[rows], params, code, levels)
+            part_col = pd.Series(arrow_parts.take(rows[order]), dtype=text_dtype)
+        except Exception:  # noqa: BLE001 - the plain way below gives the same table
+            fast = False
+    if not fast:
+        table = pd.DataFrame(
+            {
+                "part": parts[rows],
+                param_col: params,
+                value_col: vals,
+            }
+        )
+        return _sorted_by_part(table, param_col)
+    return pd.DataFrame(
+        {"part": part_col, param_col: params[order], value_col: vals[order]}
+    )
 
 
 # =============================================================================== entry
@@ -2321,29 +3064,31 @@ def load_inventory(
         }
     )
     for t in TABLE_ORDER:
-        df, pts, counts = _assemble(TABLES[t], by_table[t], report)
+        df, pts, counts, arrow_parts = _assemble(TABLES[t], by_table[t], report)
         frames[t] = df
         report.tables[t] = counts
         if len(pts) and t == "switches":
-            rp = pts[pts["pattern"] == "rds_on"]
-            rds_points = pd.DataFrame(
-                {
-                    "part": rp["part"].to_numpy(dtype=object),
-                    "vgs": rp["param"].to_numpy(dtype=float),
-                    "rds_on": rp["value"].to_numpy(dtype=float),
-                }
+            table = _points_table(
+                pts,
+                "rds_on",
+                "vgs",
+                "rds_on",
+                df["part"].to_numpy(dtype=object),
+                arrow_parts,
             )
-            rds_points = _sorted_by_part(rds_points, "vgs")
+            if table is not None:
+                rds_points = table
         if len(pts) and t == "heatsinks":
-            ap = pts[pts["pattern"] == "rth_sa"]
-            sink_airflow = pd.DataFrame(
-                {
-                    "part": ap["part"].to_numpy(dtype=object),
-                    "airflow": ap["param"].to_numpy(dtype=float),
-                    "rth_sa": ap["value"].to_numpy(dtype=float),
-                }
+            table = _points_table(
+                pts,
+                "rth_sa",
+                "airflow",
+                "rth_sa",
+                df["part"].to_numpy(dtype=object),
+                arrow_parts,
             )
-            sink_airflow = _sorted_by_part(sink_airflow, "airflow")
+            if table is not None:
+                sink_airflow = table
 
     def order(i: RowIssue) -> tuple:
         return (

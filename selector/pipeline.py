@@ -25,6 +25,7 @@ practice.
 
 from __future__ import annotations
 
+import copy
 import dataclasses
 import math
 import time
@@ -135,8 +136,11 @@ def select(
     res = _opt.solve(cset.problem, top=top, solver=solver, time_limit=time_limit)
     messages = list(res.messages)
     solutions: list[Solution] = []
+    cache: dict = {}
     for rank, raw in enumerate(res.solutions, start=1):
-        sol = evaluate_solution(inventory, design, settings, screens, cset, raw, rank)
+        sol = evaluate_solution(
+            inventory, design, settings, screens, cset, raw, rank, cache
+        )
         if rank > 1:
             sol.differs_from_best = _opt.describe_differences(
                 cset.problem, res.solutions[0], raw
@@ -277,7 +281,9 @@ def _thermal(
     """
     p0, p1, rjc, rcs, sr, dp, rja, owner = [], [], [], [], [], [], [], []
     for i, b in enumerate(builds):
-        n = b.quantity * b.count if sink_rise is not None else b.count
+        # a group sink carries every copy; an own sink carries one copy (each copy has
+        # its own), and in free air every device stands alone
+        n = b.quantity * b.count if (sink_rise is not None and b.group) else b.count
         p0 += [_f(b.row["p0_w"])] * n
         p1 += [_f(b.row["p1_w_per_k"])] * n
         rjc += [_f(b.row["rth_jc_k_per_w"])] * n
@@ -412,13 +418,18 @@ def evaluate_solution(
     cset,
     raw,
     rank: int = 1,
+    cache: dict | None = None,
 ) -> Solution:
     """The final engine evaluation of one optimizer answer (see the module docstring).
 
     Junction temperatures here come from the engine's coupled solution with the actual
     sink law, not from the optimizer's budgets; a test checks that they stay within
-    the limits for every ranked solution.
+    the limits for every ranked solution. ``cache`` (a dict shared between the ranked
+    solutions of one board) keeps the evaluation of builds they have in common.
     """
+    cache = cache if cache is not None else {}
+    c_clusters = cache.setdefault("clusters", {})
+    c_picks = cache.setdefault("picks", {})
     cond = design.conditions
     ta = cond.ambient_max
     builds = _builds(inventory, design, cset, raw)
@@ -433,7 +444,14 @@ def evaluate_solution(
     for name, b in builds.items():
         if not b.group:
             clusters.append(([name], b.sink))
+    key_of: dict[str, tuple] = {}
     for names, sink in clusters:
+        ckey = (tuple((n, int(raw.choice[n])) for n in names), sink)
+        for n in names:
+            key_of[n] = ckey
+        if ckey in c_clusters:
+            results.update(c_clusters[ckey])
+            continue
         blist = [builds[n] for n in names]
         one, rise = (None, None) if sink is None else _sink_law(sink_table, sink)
         tj, pk, ts, pw = _thermal(blist, ta, rise, settings)
@@ -460,8 +478,18 @@ def evaluate_solution(
                 else blist[0].count,
             }
 
+        c_clusters[ckey] = {n: results[n] for n in names}
+
     picks: list[ChannelPick] = []
     for ch in design.channels:
+        pkey = (
+            key_of[ch.name],
+            ch.name,
+            tuple(sorted(raw.accessories.get(ch.name, {}).items())),
+        )
+        if pkey in c_picks:
+            picks.append(copy.deepcopy(c_picks[pkey]))
+            continue
         b = builds[ch.name]
         r = results[ch.name]
         c = b.cand
@@ -650,25 +678,25 @@ def evaluate_solution(
         tr = _transient(inventory, b, design, r["p_dev"], r["one"], r["r_sa"])
         if tr:
             details["transient"] = tr
-        picks.append(
-            ChannelPick(
-                channel=ch.name,
-                switch=str(c["switch"]),
-                switch_count=b.count,
-                heatsink=b.sink,
-                interface=str(c["interface"]) or None,
-                diode=diode,
-                driver=driver,
-                quantity=q,
-                cost=cost,
-                tj_at_ambient_max=tj_worst,
-                tj_limit=t_lim,
-                sink_temperature=r["ts"],
-                loss=loss,
-                notes=notes,
-                details=details,
-            )
+        pick = ChannelPick(
+            channel=ch.name,
+            switch=str(c["switch"]),
+            switch_count=b.count,
+            heatsink=b.sink,
+            interface=str(c["interface"]) or None,
+            diode=diode,
+            driver=driver,
+            quantity=q,
+            cost=cost,
+            tj_at_ambient_max=tj_worst,
+            tj_limit=t_lim,
+            sink_temperature=r["ts"],
+            loss=loss,
+            notes=notes,
+            details=details,
         )
+        c_picks[pkey] = pick
+        picks.append(copy.deepcopy(pick))
     total = sum(p.cost for p in picks) + sum(
         problem.price("heatsinks", s) for s in raw.group_sinks.values()
     )

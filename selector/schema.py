@@ -80,11 +80,14 @@ class DefaultRule:
     ``compute(frame)`` receives the table's DataFrame (SI values, normalised text) and
     returns a Series aligned with it: the default per row, or NaN/None where no default
     applies. ``reason(value)`` gives the reason text for one filled value.
+    ``reads`` names every column ``compute`` looks at (None: not declared); a rule that
+    reads only ``kind``/``package`` can then be computed once per distinct pair.
     """
 
     compute: Callable[[pd.DataFrame], pd.Series]
     reason: Callable[[Any, pd.Series], str]
     summary: str  # one line for the template and the docs
+    reads: tuple[str, ...] | None = None
 
 
 @dataclass(frozen=True)
@@ -440,15 +443,32 @@ _TAB_DRAIN_PACKAGES = ("TO-220", "TO-247", "TO-3P", "D2PAK", "DPAK", "IPAK", "SO
 _TAB_ISOLATED_PACKAGES = ("TO-220F",)
 
 
+def _col(df: pd.DataFrame, name: str, blank: Any) -> pd.Series:
+    """``df[name]``, or a column of ``blank`` (None: object, NaN: float) without it."""
+    if name in df:
+        return df[name]
+    if blank is None:
+        return pd.Series(None, index=df.index, dtype=object)
+    return pd.Series(np.nan, index=df.index)
+
+
+def _in(s: pd.Series, values: tuple[str, ...]) -> np.ndarray:
+    """``s.isin(values)`` as a bool array; a categorical is tested on its categories."""
+    if isinstance(s.dtype, pd.CategoricalDtype):
+        lut = np.append(np.asarray(s.cat.categories.isin(values), dtype=bool), False)
+        return lut[s.cat.codes.to_numpy()]
+    return s.isin(values).to_numpy(dtype=bool)
+
+
 def _default_tab(df: pd.DataFrame) -> pd.Series:
-    pkg = df.get("package", pd.Series(None, index=df.index, dtype=object))
-    kind = df.get("kind", pd.Series(None, index=df.index, dtype=object))
-    out = pd.Series(None, index=df.index, dtype=object)
-    drain = pkg.isin(_TAB_DRAIN_PACKAGES)
-    out[drain & (kind == "igbt")] = "collector"
-    out[drain & kind.isin(("nmos", "pmos"))] = "drain"
-    out[pkg.isin(_TAB_ISOLATED_PACKAGES)] = "isolated"
-    return out
+    pkg = _col(df, "package", None)
+    kind = _col(df, "kind", None)
+    out = np.full(len(df.index), None, dtype=object)
+    drain = _in(pkg, _TAB_DRAIN_PACKAGES)
+    out[drain & _in(kind, ("igbt",))] = "collector"
+    out[drain & _in(kind, ("nmos", "pmos"))] = "drain"
+    out[_in(pkg, _TAB_ISOLATED_PACKAGES)] = "isolated"
+    return pd.Series(out, index=df.index, dtype=object, copy=False)
 
 
 def _reason_tab(value: Any, row: pd.Series) -> str:
@@ -465,14 +485,16 @@ def _reason_tab(value: Any, row: pd.Series) -> str:
 
 
 def _default_vgs_max(df: pd.DataFrame) -> pd.Series:
-    lowest = df.get("_rds_lowest_vgs", pd.Series(np.nan, index=df.index))
-    kind = df.get("kind", pd.Series(None, index=df.index, dtype=object))
-    out = pd.Series(np.nan, index=df.index, dtype=float)
-    mos = kind.isin(("nmos", "pmos"))
-    out[mos & (lowest >= 10.0 - 1e-9)] = 20.0
-    out[mos & (lowest < 10.0 - 1e-9)] = 12.0
-    out[kind == "igbt"] = 20.0
-    return out
+    lowest = _col(df, "_rds_lowest_vgs", np.nan)
+    kind = _col(df, "kind", None)
+    low = lowest.to_numpy(dtype=float)
+    out = np.full(len(df.index), np.nan)
+    mos = _in(kind, ("nmos", "pmos"))
+    with np.errstate(invalid="ignore"):
+        out[mos & (low >= 10.0 - 1e-9)] = 20.0
+        out[mos & (low < 10.0 - 1e-9)] = 12.0
+    out[_in(kind, ("igbt",))] = 20.0
+    return pd.Series(out, index=df.index, dtype=float, copy=False)
 
 
 def _reason_vgs_max(value: Any, row: pd.Series) -> str:
@@ -490,13 +512,14 @@ def _reason_vgs_max(value: Any, row: pd.Series) -> str:
 
 
 def _default_rds_hot_ratio(df: pd.DataFrame) -> pd.Series:
-    v = df.get("v_rating", pd.Series(np.nan, index=df.index))
-    kind = df.get("kind", pd.Series(None, index=df.index, dtype=object))
-    mos = kind.isin(("nmos", "pmos")) & v.notna()
-    out = pd.Series(np.nan, index=df.index, dtype=float)
-    out[mos & (v <= 100.0)] = 1.8
-    out[mos & (v > 100.0)] = 2.2
-    return out
+    v = _col(df, "v_rating", np.nan).to_numpy(dtype=float)
+    kind = _col(df, "kind", None)
+    mos = _in(kind, ("nmos", "pmos")) & ~np.isnan(v)
+    out = np.full(len(df.index), np.nan)
+    with np.errstate(invalid="ignore"):
+        out[mos & (v <= 100.0)] = 1.8
+        out[mos & (v > 100.0)] = 2.2
+    return pd.Series(out, index=df.index, dtype=float, copy=False)
 
 
 def _reason_rds_hot_ratio(value: Any, row: pd.Series) -> str:
@@ -512,12 +535,15 @@ def _reason_rds_hot_ratio(value: Any, row: pd.Series) -> str:
 
 
 def _default_rth_ja(df: pd.DataFrame) -> pd.Series:
-    pkg = df.get("package", pd.Series(None, index=df.index, dtype=object))
-    codes, uniq = pd.factorize(pkg.astype(object))
+    pkg = _col(df, "package", None)
+    if isinstance(pkg.dtype, pd.CategoricalDtype):
+        codes, uniq = pkg.cat.codes.to_numpy(), pkg.cat.categories
+    else:
+        codes, uniq = pd.factorize(pkg.astype(object))
     lut = np.array(
         [RTH_JA_BY_PACKAGE.get(u, np.nan) for u in uniq] + [np.nan], dtype=float
     )
-    return pd.Series(lut[codes], index=df.index)
+    return pd.Series(lut[codes], index=df.index, copy=False)
 
 
 def _reason_rth_ja(value: Any, row: pd.Series) -> str:
@@ -535,17 +561,17 @@ def _reason_rth_ja(value: Any, row: pd.Series) -> str:
 
 
 def _default_vce_sat_vge(df: pd.DataFrame) -> pd.Series:
-    kind = df.get("kind", pd.Series(None, index=df.index, dtype=object))
-    out = pd.Series(np.nan, index=df.index, dtype=float)
-    out[kind == "igbt"] = 15.0
-    return out
+    kind = _col(df, "kind", None)
+    out = np.full(len(df.index), np.nan)
+    out[_in(kind, ("igbt",))] = 15.0
+    return pd.Series(out, index=df.index, dtype=float, copy=False)
 
 
 def _default_rth_sa_rise(df: pd.DataFrame) -> pd.Series:
-    r = df.get("rth_sa", pd.Series(np.nan, index=df.index))
-    out = pd.Series(np.nan, index=df.index, dtype=float)
-    out[r.notna()] = 75.0
-    return out
+    r = _col(df, "rth_sa", np.nan)
+    out = np.full(len(df.index), np.nan)
+    out[r.notna().to_numpy(dtype=bool)] = 75.0
+    return pd.Series(out, index=df.index, dtype=float, copy=False)
 
 
 # --------------------------------------------------------------------------- tables
@@ -1418,26 +1444,31 @@ RULE_DEFAULTS: Mapping[tuple[str, str], DefaultRule] = MappingProxyType(
                 "IGBT saturation voltage is normally given at 15 V gate-emitter (common practice)"
             ),
             "IGBT: 15 V",
+            reads=("kind",),
         ),
         ("switches", "rth_ja"): DefaultRule(
             _default_rth_ja,
             _reason_rth_ja,
             "per package: TO-220 62, TO-247 40, D2PAK 40, DPAK 50, SO-8 80 K/W",
+            reads=("package",),
         ),
         ("switches", "vgs_max"): DefaultRule(
             _default_vgs_max,
             _reason_vgs_max,
             "20 V when the lowest rds_on point is at ≥ 10 V, else 12 V; IGBT 20 V",
+            reads=("_rds_lowest_vgs", "kind"),
         ),
         ("switches", "rds_hot_ratio"): DefaultRule(
             _default_rds_hot_ratio,
             _reason_rds_hot_ratio,
             "MOSFET: 1.8 for v_rating ≤ 100 V, else 2.2",
+            reads=("v_rating", "kind"),
         ),
         ("switches", "tab"): DefaultRule(
             _default_tab,
             _reason_tab,
             "drain (MOSFET) or collector (IGBT) for TO-220, TO-247, D2PAK, DPAK, SO-8",
+            reads=("package", "kind"),
         ),
         ("heatsinks", "rth_sa_rise"): DefaultRule(
             _default_rth_sa_rise,
@@ -1445,6 +1476,7 @@ RULE_DEFAULTS: Mapping[tuple[str, str], DefaultRule] = MappingProxyType(
                 "catalogue natural-convection values are usually quoted at a 75 K rise (common practice)"
             ),
             "75 K when rth_sa is given",
+            reads=("rth_sa",),
         ),
     }
 )

@@ -18,12 +18,14 @@ file's decimal convention when that is known and refused otherwise; never guesse
 from __future__ import annotations
 
 import datetime as _dt
+import functools
 import re
 from typing import Any
 
 import numpy as np
 import pandas as pd
 import pint
+import pint.util
 
 from .errors import InputError
 
@@ -328,7 +330,23 @@ def parse_quantity_series(
     vals, why, _ = _parse_quantity_series(
         values, target_unit, header_unit, decimal=decimal, magnitude=magnitude
     )
+    if why is None:
+        why = pd.Series(
+            np.full(len(vals), None, dtype=object), index=values.index, dtype=object
+        )
     return vals, why
+
+
+@functools.lru_cache(maxsize=1024)
+def _parsed_unit(unit: str) -> Any:
+    """``unit`` parsed as :class:`pint.Quantity` parses its unit text (cached)."""
+    return ureg.parse_units(unit)
+
+
+@functools.lru_cache(maxsize=256)
+def _parsed_target(unit: str) -> Any:
+    """``unit`` parsed as :meth:`pint.Quantity.to` parses its target (cached)."""
+    return pint.util.to_units_container(unit, ureg)
 
 
 def _parse_quantity_series(
@@ -338,11 +356,13 @@ def _parse_quantity_series(
     *,
     decimal: str | None = None,
     magnitude: bool = False,
-) -> tuple[np.ndarray, pd.Series, bool]:
-    """The work of :func:`parse_quantity_series`; also says if any cell was bad."""
+) -> tuple[np.ndarray, pd.Series | None, bool]:
+    """The work of :func:`parse_quantity_series`; also says if any cell was bad.
+
+    The reasons are None when the column cannot hold a bad cell (a numeric column in a
+    unit of the right dimension), which spares a Series of blanks per column.
+    """
     n = len(values)
-    out = np.full(n, np.nan)
-    why_out = np.full(n, None, dtype=object)
     bare_unit = (
         resolve_unit(header_unit, target_unit)
         if header_unit is not None
@@ -351,7 +371,11 @@ def _parse_quantity_series(
 
     def convert(arr: np.ndarray, unit: str) -> tuple[np.ndarray | None, str | None]:
         try:
-            res = np.asarray(Q_(arr, unit).to(target_unit).magnitude, dtype=float)
+            # as Q_(arr, unit).to(target_unit).magnitude, with the units parsed once
+            res = np.asarray(
+                ureg.convert(arr, _parsed_unit(unit), _parsed_target(target_unit)),
+                dtype=float,
+            )
         except pint.errors.DimensionalityError:
             return None, (
                 f"is {dimension_name(unit)}, this column needs "
@@ -361,14 +385,18 @@ def _parse_quantity_series(
             return None, "unknown unit"
         return res, None
 
-    def finish() -> tuple[np.ndarray, pd.Series, bool]:
-        res = np.abs(out) if magnitude else out
+    def finish() -> tuple[np.ndarray, pd.Series | None, bool]:
+        res = np.abs(out, out=out) if magnitude else out  # ``out`` is our own array
+        if why_out is None:
+            return res, None, False
         any_bad = bad_seen[0] and bool((why_out != None).any())  # noqa: E711 - elementwise
         return res, pd.Series(why_out, index=values.index, dtype=object), any_bad
 
     bad_seen = [True]  # cleared below on the paths that cannot produce a reason
 
     if n == 0:
+        out = np.full(n, np.nan)
+        why_out = np.full(n, None, dtype=object)
         return finish()
 
     if pd.api.types.is_numeric_dtype(values.dtype) and not pd.api.types.is_bool_dtype(
@@ -377,12 +405,17 @@ def _parse_quantity_series(
         arr = values.to_numpy(dtype=float, na_value=np.nan)
         conv, why = convert(arr, bare_unit)
         if conv is None:
+            out = np.full(n, np.nan)
+            why_out = np.full(n, None, dtype=object)
             why_out[~np.isnan(arr)] = f"a bare number in '{header_unit}' {why}"
         else:
-            out[:] = conv
-            bad_seen[0] = False
+            # a fresh array of our own (never the caller's cells)
+            out = conv.copy() if np.may_share_memory(conv, arr) else conv
+            why_out = None
         return finish()
 
+    out = np.full(n, np.nan)
+    why_out = np.full(n, None, dtype=object)
     obj = values.to_numpy(dtype=object)
     is_str = np.fromiter((isinstance(v, str) for v in obj), dtype=bool, count=n)
     is_num = np.fromiter((_is_plain_number(v) for v in obj), dtype=bool, count=n)

@@ -41,7 +41,8 @@ def layers_oracle(values: np.ndarray, max_layers: int) -> np.ndarray:
         front = set()
         for i in remaining:
             dominated = any(
-                rank[j] < rank[i] and all(values[j][d] <= values[i][d] for d in range(values.shape[1]))
+                rank[j] < rank[i]
+                and all(values[j][d] <= values[i][d] for d in range(values.shape[1]))
                 for j in remaining
                 if j != i
             )
@@ -55,9 +56,7 @@ def layers_oracle(values: np.ndarray, max_layers: int) -> np.ndarray:
 
 @settings(max_examples=60, deadline=None)
 @given(
-    data=st.lists(
-        st.tuples(*[st.integers(0, 5)] * 3), min_size=0, max_size=40
-    ),
+    data=st.lists(st.tuples(*[st.integers(0, 5)] * 3), min_size=0, max_size=40),
     k=st.integers(1, 4),
     block=st.sampled_from([1, 3, 512]),
 )
@@ -91,7 +90,16 @@ def test_tab_nodes_follow_the_switch_position():
     supply rail. High-side P-MOSFET: drain = load node. Isolated tab: no node."""
     kind = ["nmos", "nmos", "pmos", "nmos", "igbt", "nmos", "nmos", "pmos"]
     side = ["low", "high", "high", "low", "high", "high", "low", "high"]
-    tab = ["drain", "drain", "drain", "source", "collector", "source", "isolated", "source"]
+    tab = [
+        "drain",
+        "drain",
+        "drain",
+        "source",
+        "collector",
+        "source",
+        "isolated",
+        "source",
+    ]
     nodes, per_copy = cm.tab_nodes(kind, side, tab, "pump", 24.0)
     assert nodes.tolist() == [
         "pump:load",
@@ -273,14 +281,29 @@ def brute_force_cheapest(passed, interfaces, sinks, cond, quantity=1):
         for i in interfaces.to_dict("records"):
             if r["package"] not in i["fits"]:
                 continue
-            h = r["t_lim_c"] - cond.ambient_max - r["p_dev_w"] * (r["rth_jc_k_per_w"] + i["rth_cs"]) - r["surge_rise_k"]
+            h = (
+                r["t_lim_c"]
+                - cond.ambient_max
+                - r["p_dev_w"] * (r["rth_jc_k_per_w"] + i["rth_cs"])
+                - r["surge_rise_k"]
+            )
             for s in range(len(sinks)):
                 srow = sinks.iloc[[s]]
-                if r["package"] not in srow["fits"].iloc[0] or srow["positions"].iloc[0] < r["count"]:
+                if (
+                    r["package"] not in srow["fits"].iloc[0]
+                    or srow["positions"].iloc[0] < r["count"]
+                ):
                     continue
-                rise = float(heatsinks.sink_rise(srow, np.array(r["count"] * r["p_dev_w"]), outer=False)[0])
+                rise = float(
+                    heatsinks.sink_rise(
+                        srow, np.array(r["count"] * r["p_dev_w"]), outer=False
+                    )[0]
+                )
                 if h > 0 and rise <= h + 1e-9:
-                    best = min(best, r["count"] * (r["price"] + i["price"]) + srow["price"].iloc[0])
+                    best = min(
+                        best,
+                        r["count"] * (r["price"] + i["price"]) + srow["price"].iloc[0],
+                    )
     return best
 
 
@@ -326,7 +349,9 @@ def test_cheapest_candidate_equals_brute_force_over_every_sink(seed):
                 round(float(5 / r**0.8 + rng.uniform(0, 0.5)), 2),
                 NAN,
                 int(rng.integers(1, 4)),
-                [("TO-220",), ("TO-247",), ("TO-220", "TO-247")][int(rng.integers(0, 3))],
+                [("TO-220",), ("TO-247",), ("TO-220", "TO-247")][
+                    int(rng.integers(0, 3))
+                ],
                 r,
                 float(rng.choice([0.0, 0.25, 0.3])),
             )
@@ -350,7 +375,11 @@ def test_cheapest_candidate_equals_brute_force_over_every_sink(seed):
     # every kept sink build keeps the sink's own rise within the budget
     for r in cc.table[cc.table["mount"] == "sink"].to_dict("records"):
         srow = sinks[sinks["part"] == r["heatsink"]]
-        rise = float(heatsinks.sink_rise(srow, np.array(r["count"] * r["p_dev_w"]), outer=False)[0])
+        rise = float(
+            heatsinks.sink_rise(srow, np.array(r["count"] * r["p_dev_w"]), outer=False)[
+                0
+            ]
+        )
         assert rise <= r["h_k"] + 1e-9
 
 
@@ -359,7 +388,12 @@ def test_ungrouped_pruning_keeps_the_cheapest_parts_and_a_safe_one():
     builds each, up to the first build whose parts have stock for the whole board."""
     cond = Conditions(ambient_max=40.0)
     rows = [
-        dict(part=f"SW{i}", price=0.1 * (i + 1), stock=1.0 if i < 6 else NAN, tj_no_sink_peak_c=60.0)
+        dict(
+            part=f"SW{i}",
+            price=0.1 * (i + 1),
+            stock=1.0 if i < 6 else NAN,
+            tj_no_sink_peak_c=60.0,
+        )
         for i in range(10)
     ]
     cc = cm.channel_candidates(

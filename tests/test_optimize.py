@@ -58,7 +58,9 @@ def group_constant_r(group, cand, sinks, r_sa, fits=None):
     return GroupSinks(group[0], list(sinks), rows, pmax)
 
 
-def grouped(channel, switch, p_dev, rth_jc, rth_cs, *, cost, t_lim=125.0, ta=50.0, **kw):
+def grouped(
+    channel, switch, p_dev, rth_jc, rth_cs, *, cost, t_lim=125.0, ta=50.0, **kw
+):
     """A group candidate row: dev_rise = p_dev·(RθJC + RθCS), h = T_lim − Ta − rise."""
     n = kw.pop("count", 1)
     rise = p_dev * (rth_jc + rth_cs)
@@ -214,7 +216,10 @@ def _isolation_problem(n_channels=2, node=lambda c: f"{c}:load", quantity=1):
     rows = []
     names = [f"ch{i}" for i in range(n_channels)]
     for c in names:
-        for itf, price, ins, rcs in (("GREASE", 0.1, False, 0.5), ("PAD", 0.5, True, 1.5)):
+        for itf, price, ins, rcs in (
+            ("GREASE", 0.1, False, 0.5),
+            ("PAD", 0.5, True, 1.5),
+        ):
             rows.append(
                 grouped(
                     c,
@@ -245,9 +250,7 @@ def _isolation_problem(n_channels=2, node=lambda c: f"{c}:load", quantity=1):
 
 
 def _pads(best, cand):
-    return sorted(
-        c for c, k in best.choice.items() if bool(cand.at[k, "insulating"])
-    )
+    return sorted(c for c, k in best.choice.items() if bool(cand.at[k, "insulating"]))
 
 
 def test_live_tab_pair_on_one_sink_forces_an_insulating_pad():
@@ -340,7 +343,9 @@ def test_no_diode_left_moves_to_a_switch_that_needs_none():
 
 def test_driver_need_becomes_a_note_without_drivers():
     """When the inventory has no drivers the need is not enforced (a note later)."""
-    cand = candidate_frame([in_air("heater", "SW-HI", cost=1.0, driver_kind="high_side")])
+    cand = candidate_frame(
+        [in_air("heater", "SW-HI", cost=1.0, driver_kind="high_side")]
+    )
     parts = parts_table([("switches", "SW-HI", 1.0, NAN)])
     ch = channels_table(("heater", 1, ""))
     prob = SelectionProblem(ch, cand, parts, enforce=frozenset({"diode"}))
@@ -350,11 +355,15 @@ def test_driver_need_becomes_a_note_without_drivers():
     prob2 = SelectionProblem(ch, cand, parts)
     res = solve(prob2)
     assert res.status == "no_candidates"
-    assert "no suitable gate driver (high_side) in the inventory" in res.unusable["heater"]
+    assert (
+        "no suitable gate driver (high_side) in the inventory" in res.unusable["heater"]
+    )
 
 
 def test_driver_of_the_right_kind_is_chosen_and_paid():
-    cand = candidate_frame([in_air("heater", "SW-HI", cost=1.0, driver_kind="high_side")])
+    cand = candidate_frame(
+        [in_air("heater", "SW-HI", cost=1.0, driver_kind="high_side")]
+    )
     parts = parts_table(
         [
             ("switches", "SW-HI", 1.0, NAN),
@@ -369,7 +378,9 @@ def test_driver_of_the_right_kind_is_chosen_and_paid():
         ]
     )
     best = solve(
-        SelectionProblem(channels_table(("heater", 1, "")), cand, parts, accessories=acc)
+        SelectionProblem(
+            channels_table(("heater", 1, "")), cand, parts, accessories=acc
+        )
     ).solutions[0]
     assert best.accessories == {"heater": {"driver": "DRV-HI"}}
     assert best.cost == pytest.approx(1.7)
@@ -413,7 +424,10 @@ def test_sink_that_does_not_fit_the_package_is_not_chosen():
     )
     ch = channels_table(("A", 1, "g"), ("B", 1, "g"))
     gs = group_constant_r(
-        ("g", ["A", "B"]), cand, ["HS-220ONLY", "HS-BOTH"], [1.0, 1.0],
+        ("g", ["A", "B"]),
+        cand,
+        ["HS-220ONLY", "HS-BOTH"],
+        [1.0, 1.0],
         fits=[[True, True], [False, True]],
     )
     best = solve(SelectionProblem(ch, cand, parts, {"g": gs})).solutions[0]
@@ -428,8 +442,12 @@ def test_equal_cost_tie_goes_to_the_larger_margin():
             in_air("lamp", "SW-COOL", cost=1.0, margin=30.0),
         ]
     )
-    parts = parts_table([("switches", "SW-WARM", 1.0, NAN), ("switches", "SW-COOL", 1.0, NAN)])
-    best = solve(SelectionProblem(channels_table(("lamp", 1, "")), cand, parts)).solutions[0]
+    parts = parts_table(
+        [("switches", "SW-WARM", 1.0, NAN), ("switches", "SW-COOL", 1.0, NAN)]
+    )
+    best = solve(
+        SelectionProblem(channels_table(("lamp", 1, "")), cand, parts)
+    ).solutions[0]
     assert cand.at[best.choice["lamp"], "switch"] == "SW-COOL"
 
 
@@ -441,8 +459,12 @@ def test_margin_never_outweighs_one_price_unit():
             in_air("lamp", "SW-COLD", cost=1.01, margin=500.0),
         ]
     )
-    parts = parts_table([("switches", "SW-HOT", 1.0, NAN), ("switches", "SW-COLD", 1.01, NAN)])
-    best = solve(SelectionProblem(channels_table(("lamp", 1, "")), cand, parts)).solutions[0]
+    parts = parts_table(
+        [("switches", "SW-HOT", 1.0, NAN), ("switches", "SW-COLD", 1.01, NAN)]
+    )
+    best = solve(
+        SelectionProblem(channels_table(("lamp", 1, "")), cand, parts)
+    ).solutions[0]
     assert cand.at[best.choice["lamp"], "switch"] == "SW-HOT"
     assert price_unit([1.0, 1.01]) == pytest.approx(0.01)
 
@@ -492,7 +514,9 @@ def test_ranked_alternatives_are_distinct_and_sorted():
 def test_infeasible_when_stock_cannot_cover_the_board():
     cand = candidate_frame([in_air("A", "SW", cost=1.0), in_air("B", "SW", cost=1.0)])
     parts = parts_table([("switches", "SW", 1.0, 1)])
-    res = solve(SelectionProblem(channels_table(("A", 1, ""), ("B", 1, "")), cand, parts))
+    res = solve(
+        SelectionProblem(channels_table(("A", 1, ""), ("B", 1, "")), cand, parts)
+    )
     assert res.status == "infeasible"
     assert res.solutions == []
 
@@ -500,7 +524,9 @@ def test_infeasible_when_stock_cannot_cover_the_board():
 def test_channel_without_candidates_is_reported():
     cand = candidate_frame([in_air("A", "SW", cost=1.0)])
     parts = parts_table([("switches", "SW", 1.0, NAN)])
-    res = solve(SelectionProblem(channels_table(("A", 1, ""), ("B", 1, "")), cand, parts))
+    res = solve(
+        SelectionProblem(channels_table(("A", 1, ""), ("B", 1, "")), cand, parts)
+    )
     assert res.status == "no_candidates"
     assert "channel 'B' has no usable candidate" in res.messages
 

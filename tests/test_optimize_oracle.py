@@ -146,7 +146,9 @@ def random_instance(seed: int) -> tuple[SelectionProblem, dict]:
         parts.append(("diodes", p, price, st_, 1))
     for p, (price, st_) in drivers.items():
         parts.append(("drivers", p, price, st_, 1))
-    parts = pd.DataFrame(parts, columns=["table", "part", "price", "stock", "positions"])
+    parts = pd.DataFrame(
+        parts, columns=["table", "part", "price", "stock", "positions"]
+    )
     acc = []
     options = {}
     for c in names:
@@ -159,7 +161,11 @@ def random_instance(seed: int) -> tuple[SelectionProblem, dict]:
     acc = pd.DataFrame(acc, columns=["channel", "role", "need", "part"])
     enforce = frozenset({"diode", "driver"} if rng.random() < 0.7 else {"diode"})
     ch = pd.DataFrame(
-        {"name": names, "quantity": [quantity[c] for c in names], "group": [group[c] for c in names]}
+        {
+            "name": names,
+            "quantity": [quantity[c] for c in names],
+            "group": [group[c] for c in names],
+        }
     )
     prob = SelectionProblem(ch, cand, parts, groups, acc, enforce)
     plain = dict(
@@ -172,7 +178,11 @@ def random_instance(seed: int) -> tuple[SelectionProblem, dict]:
         diodes=diodes,
         drivers=drivers,
         options=options,
-        fits={(int(k), s): bool(fits[i, j]) for i, k in enumerate(g_rows) for j, s in enumerate(g_sinks)},
+        fits={
+            (int(k), s): bool(fits[i, j])
+            for i, k in enumerate(g_rows)
+            for j, s in enumerate(g_sinks)
+        },
         enforce=enforce,
     )
     return prob, plain
@@ -188,10 +198,16 @@ def brute_force(prob: SelectionProblem, plain: dict) -> dict[tuple, float]:
     names, qty, group = plain["names"], plain["quantity"], plain["group"]
     members = [c for c in names if group[c]]
     stock = {
-        (t, p): s for t, p, s in zip(prob.parts["table"], prob.parts["part"], prob.parts["stock"])
+        (t, p): s
+        for t, p, s in zip(
+            prob.parts["table"], prob.parts["part"], prob.parts["stock"], strict=True
+        )
     }
     price = {
-        (t, p): v for t, p, v in zip(prob.parts["table"], prob.parts["part"], prob.parts["price"])
+        (t, p): v
+        for t, p, v in zip(
+            prob.parts["table"], prob.parts["part"], prob.parts["price"], strict=True
+        )
     }
 
     per_channel = []
@@ -218,7 +234,7 @@ def brute_force(prob: SelectionProblem, plain: dict) -> dict[tuple, float]:
         for s in sink_choices:
             use: Counter = Counter()
             cost = 0.0
-            for c, (k, d, dr) in zip(names, combo):
+            for c, (k, d, dr) in zip(names, combo, strict=True):
                 r = cand.loc[k]
                 q = qty[c]
                 n = int(r["count"])
@@ -243,7 +259,7 @@ def brute_force(prob: SelectionProblem, plain: dict) -> dict[tuple, float]:
                 r_sa, positions = plain["sinks"][s][3], plain["sinks"][s][2]
                 power = devices = 0.0
                 nodes = set()
-                for c, (k, _, _) in zip(names, combo):
+                for c, (k, _, _) in zip(names, combo, strict=True):
                     if not group[c]:
                         continue
                     r = cand.loc[k]
@@ -255,10 +271,12 @@ def brute_force(prob: SelectionProblem, plain: dict) -> dict[tuple, float]:
                         else:
                             nodes.add((r["tab_node"], 0))
                 ok = devices <= positions and len(nodes) <= 1
-                for c, (k, _, _) in zip(names, combo):
+                for c, (k, _, _) in zip(names, combo, strict=True):
                     if ok and group[c]:
                         h = cand.at[k, "h_k"]
-                        ok = plain["fits"][(k, s)] and h > 0 and r_sa * power <= h + 1e-9
+                        ok = (
+                            plain["fits"][(k, s)] and h > 0 and r_sa * power <= h + 1e-9
+                        )
             for key, u in use.items():
                 st_ = stock.get(key, NAN)
                 if ok and not math.isnan(st_) and u > st_:
@@ -266,7 +284,7 @@ def brute_force(prob: SelectionProblem, plain: dict) -> dict[tuple, float]:
             if not ok:
                 continue
             sig = []
-            for c, (k, _, _) in zip(names, combo):
+            for c, (k, _, _) in zip(names, combo, strict=True):
                 sig.append(("switch", c, cand.at[k, "switch"]))
                 if not group[c]:
                     sig.append(("sink", c, cand.at[k, "heatsink"]))
@@ -311,11 +329,30 @@ def scipy_optimum(prob: SelectionProblem) -> float | None:
     """
     cand = prob.candidates
     ch = prob.channels
-    qty = dict(zip(ch["name"], ch["quantity"]))
-    grp = dict(zip(ch["name"], ch["group"]))
-    price = {(t, p): v for t, p, v in zip(prob.parts["table"], prob.parts["part"], prob.parts["price"])}
-    stock = {(t, p): s for t, p, s in zip(prob.parts["table"], prob.parts["part"], prob.parts["stock"])}
-    pos = {p: v for t, p, v in zip(prob.parts["table"], prob.parts["part"], prob.parts["positions"]) if t == "heatsinks"}
+    qty = dict(zip(ch["name"], ch["quantity"], strict=True))
+    grp = dict(zip(ch["name"], ch["group"], strict=True))
+    price = {
+        (t, p): v
+        for t, p, v in zip(
+            prob.parts["table"], prob.parts["part"], prob.parts["price"], strict=True
+        )
+    }
+    stock = {
+        (t, p): s
+        for t, p, s in zip(
+            prob.parts["table"], prob.parts["part"], prob.parts["stock"], strict=True
+        )
+    }
+    pos = {
+        p: v
+        for t, p, v in zip(
+            prob.parts["table"],
+            prob.parts["part"],
+            prob.parts["positions"],
+            strict=True,
+        )
+        if t == "heatsinks"
+    }
 
     n = len(cand)
     cols: list[tuple] = [("x", k) for k in range(n)]
@@ -326,7 +363,9 @@ def scipy_optimum(prob: SelectionProblem) -> float | None:
             cols.append(("y", g, s))
     acols = {}
     acc = prob.accessories
-    for c, role, need, part in zip(acc["channel"], acc["role"], acc["need"], acc["part"]):
+    for c, role, need, part in zip(
+        acc["channel"], acc["role"], acc["need"], acc["part"], strict=True
+    ):
         if role in prob.enforce:
             acols[(c, role, need, part)] = len(cols)
             cols.append(("a", c, role, need, part))
@@ -335,9 +374,9 @@ def scipy_optimum(prob: SelectionProblem) -> float | None:
     upper = np.ones(m)
     for k in range(n):
         cost[k] = qty[cand.at[k, "channel"]] * cand.at[k, "cost"]
-    for (g, s), j in gcols.items():
+    for (_g, s), j in gcols.items():
         cost[j] = price[("heatsinks", s)]
-    for (c, role, need, part), j in acols.items():
+    for (c, role, _need, part), j in acols.items():
         cost[j] = qty[c] * price[(ROLE_TABLE[role], part)]
 
     A: list[np.ndarray] = []
@@ -365,7 +404,11 @@ def scipy_optimum(prob: SelectionProblem) -> float | None:
                 continue
             needs = {need_of(cand.loc[k]) for k in ks} - {""}
             for need in needs:
-                entries = [(j, 1.0) for (cc, rr, nn, _), j in acols.items() if (cc, rr, nn) == (c, role, need)]
+                entries = [
+                    (j, 1.0)
+                    for (cc, rr, nn, _), j in acols.items()
+                    if (cc, rr, nn) == (c, role, need)
+                ]
                 entries += [(int(k), -1.0) for k in ks if need_of(cand.loc[k]) == need]
                 row(entries, 0, 0)
     # stock
@@ -375,10 +418,12 @@ def scipy_optimum(prob: SelectionProblem) -> float | None:
         q = qty[r["channel"]]
         uses.setdefault(("switches", r["switch"]), []).append((k, q * r["count"]))
         if r["interface"]:
-            uses.setdefault(("interfaces", r["interface"]), []).append((k, q * r["count"]))
+            uses.setdefault(("interfaces", r["interface"]), []).append(
+                (k, q * r["count"])
+            )
         if r["mount"] == "sink":
             uses.setdefault(("heatsinks", r["heatsink"]), []).append((k, q))
-    for (g, s), j in gcols.items():
+    for (_g, s), j in gcols.items():
         uses.setdefault(("heatsinks", s), []).append((j, 1))
     for (c, role, _need, part), j in acols.items():
         uses.setdefault((ROLE_TABLE[role], part), []).append((j, qty[c]))
@@ -408,7 +453,11 @@ def scipy_optimum(prob: SelectionProblem) -> float | None:
                 else:  # Σ heat ≤ p + big·(2 − x_k − y)
                     row(heat + [(k, big), (y, big)], -np.inf, p + 2 * big)
         for k in ks:
-            if touching[k] and cand.at[k, "node_per_copy"] and qty[cand.at[k, "channel"]] > 1:
+            if (
+                touching[k]
+                and cand.at[k, "node_per_copy"]
+                and qty[cand.at[k, "channel"]] > 1
+            ):
                 upper[k] = 0
         for k1, k2 in itertools.combinations(ks, 2):
             c1, c2 = cand.at[k1, "channel"], cand.at[k2, "channel"]
@@ -418,8 +467,15 @@ def scipy_optimum(prob: SelectionProblem) -> float | None:
     # enforced needs without any option: the candidate cannot be used
     for k in range(n):
         c = cand.at[k, "channel"]
-        for role, need in (("diode", "freewheel" if cand.at[k, "needs_diode"] else ""), ("driver", cand.at[k, "driver_kind"])):
-            if need and role in prob.enforce and not any((c, role, need) == kk[:3] for kk in acols):
+        for role, need in (
+            ("diode", "freewheel" if cand.at[k, "needs_diode"] else ""),
+            ("driver", cand.at[k, "driver_kind"]),
+        ):
+            if (
+                need
+                and role in prob.enforce
+                and not any((c, role, need) == kk[:3] for kk in acols)
+            ):
                 upper[k] = 0
     res = milp(
         cost,

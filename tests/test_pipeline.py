@@ -57,12 +57,7 @@ def assert_safe(result, design):
             assert not bad, (sol.rank, p.channel, bad)
         assert sol.total_cost == pytest.approx(
             sum(p.cost for p in sol.channels)
-            + sum(
-                float(
-                    result_price(result, s)
-                )
-                for s in sol.group_sinks.values()
-            )
+            + sum(float(result_price(result, s)) for s in sol.group_sinks.values())
         )
 
 
@@ -74,7 +69,9 @@ def result_price(result, sink):
 # the demo
 
 
-def test_demo_every_ranked_solution_keeps_every_junction_within_its_limit(demo, demo_result):
+def test_demo_every_ranked_solution_keeps_every_junction_within_its_limit(
+    demo, demo_result
+):
     """The engine's own re-check of all ranked solutions (issue 4: junction ≤ limit at
     ambient_max and every rule passed)."""
     inv, design = demo
@@ -168,11 +165,17 @@ def test_shared_sink_temperature_balances_the_heat_of_both_channels(demo, demo_r
         rcs = float(inv.interfaces.set_index("part").at[p.interface, "rth_cs"])
         tj = p.details["chain"]["tj_steady_c"]
         power = float(r["p0_w"]) + float(r["p1_w_per_k"]) * (tj - 25.0)
-        assert tj == pytest.approx(ts + power * (float(r["rth_jc_k_per_w"]) + rcs), abs=1e-3)
+        assert tj == pytest.approx(
+            ts + power * (float(r["rth_jc_k_per_w"]) + rcs), abs=1e-3
+        )
         total += power * p.quantity * p.switch_count
     table = heatsinks.sink_operating_table(inv.heatsinks, inv.sink_airflow, 0.0, 0.0)
     one = table[table["part"] == sink]
-    rise = float(np.asarray(heatsinks.sink_rise(one, np.asarray(total), outer=False)).reshape(-1)[0])
+    rise = float(
+        np.asarray(heatsinks.sink_rise(one, np.asarray(total), outer=False)).reshape(
+            -1
+        )[0]
+    )
     assert ts == pytest.approx(design.conditions.ambient_max + rise, abs=1e-3)
 
 
@@ -239,12 +242,16 @@ def small_inventory(rng, n_switches=24, n_sinks=8) -> Inventory:
             "eas": 0.1,
         }
     )
-    pts = pd.concat(
-        [
-            pd.DataFrame({"part": parts, "vgs": 10.0, "rds_on": rds}),
-            pd.DataFrame({"part": parts, "vgs": 4.5, "rds_on": rds * 1.4}),
-        ]
-    ).sort_values(["part", "vgs"]).reset_index(drop=True)
+    pts = (
+        pd.concat(
+            [
+                pd.DataFrame({"part": parts, "vgs": 10.0, "rds_on": rds}),
+                pd.DataFrame({"part": parts, "vgs": 4.5, "rds_on": rds * 1.4}),
+            ]
+        )
+        .sort_values(["part", "vgs"])
+        .reset_index(drop=True)
+    )
     r = np.exp(rng.uniform(np.log(1.0), np.log(15.0), n_sinks))
     hs = pd.DataFrame(
         {
@@ -268,9 +275,21 @@ def small_inventory(rng, n_switches=24, n_sinks=8) -> Inventory:
     )
     diodes = pd.DataFrame(
         [("D-1", 0.05, NAN, 100.0, 3.0, 0.6, 80.0, 150.0, "SMA")],
-        columns=["part", "price", "stock", "v_rrm", "i_avg", "vf", "rth_ja", "tj_max", "package"],
+        columns=[
+            "part",
+            "price",
+            "stock",
+            "v_rrm",
+            "i_avg",
+            "vf",
+            "rth_ja",
+            "tj_max",
+            "package",
+        ],
     )
-    drivers = pd.DataFrame(columns=["part", "price", "stock", "kind", "v_out", "i_peak", "v_supply_max"])
+    drivers = pd.DataFrame(
+        columns=["part", "price", "stock", "kind", "v_out", "i_peak", "v_supply_max"]
+    )
     return Inventory(
         switches=sw,
         heatsinks=hs,
@@ -285,7 +304,9 @@ def small_inventory(rng, n_switches=24, n_sinks=8) -> Inventory:
 
 def random_design(rng) -> Design:
     chans = [
-        Channel("heat", 24.0, float(rng.uniform(3, 12)), drive=12.0, heatsink_group="G"),
+        Channel(
+            "heat", 24.0, float(rng.uniform(3, 12)), drive=12.0, heatsink_group="G"
+        ),
         Channel(
             "pump",
             24.0,
@@ -297,10 +318,19 @@ def random_design(rng) -> Design:
             drive=12.0,
             heatsink_group="G",
         ),
-        Channel("lamp", 12.0, float(rng.uniform(0.5, 4)), drive=5.0, quantity=int(rng.integers(1, 3))),
+        Channel(
+            "lamp",
+            12.0,
+            float(rng.uniform(0.5, 4)),
+            drive=5.0,
+            quantity=int(rng.integers(1, 3)),
+        ),
         Channel("big", 24.0, float(rng.uniform(5, 15)), drive=12.0),
     ]
-    return Design(Conditions(ambient_max=float(rng.choice([40.0, 50.0])), max_parallel=3), tuple(chans))
+    return Design(
+        Conditions(ambient_max=float(rng.choice([40.0, 50.0])), max_parallel=3),
+        tuple(chans),
+    )
 
 
 @settings(max_examples=6, deadline=None, suppress_health_check=[HealthCheck.too_slow])
@@ -313,7 +343,9 @@ def test_random_boards_every_ranked_solution_passes_the_engine_re_check(seed):
     inv = small_inventory(rng)
     design = random_design(rng)
     res = pipeline.select(inv, design, top=3)
-    res._sink_prices = dict(zip(inv.heatsinks["part"], inv.heatsinks["price"], strict=True))
+    res._sink_prices = dict(
+        zip(inv.heatsinks["part"], inv.heatsinks["price"], strict=True)
+    )
     if res.solutions:
         assert_safe(res, design)
     else:
@@ -343,16 +375,24 @@ def test_weak_sinks_give_a_thermal_nearest_miss_with_its_numbers(demo):
     sink: the nearest miss names the junction, the limit, the RθSA it needs and the
     best sink's RθSA (issue 4 wording)."""
     inv, design = demo
-    weak = dataclasses.replace(inv, heatsinks=inv.heatsinks[inv.heatsinks["part"] == "DEMO-HS-CLIP20"])
+    weak = dataclasses.replace(
+        inv, heatsinks=inv.heatsinks[inv.heatsinks["part"] == "DEMO-HS-CLIP20"]
+    )
     ch = dataclasses.replace(
-        design.channel("frost heater"), heatsink_group="alone", current=30.0, peak_current=30.0
+        design.channel("frost heater"),
+        heatsink_group="alone",
+        current=30.0,
+        peak_current=30.0,
     )
     d = Design(design.conditions, (ch,))
     res = pipeline.select(weak, d, top=1)
     assert not res.solutions
     nm = res.infeasible["frost heater"]["nearest_miss"]
     v = nm["values"]
-    assert "needs RθSA ≤" in nm["description"] and "the best sink in stock has" in nm["description"]
+    assert (
+        "needs RθSA ≤" in nm["description"]
+        and "the best sink in stock has" in nm["description"]
+    )
     assert v["tj_c"] > v["t_lim_c"]
     assert v["rth_sa_needed"] < v["rth_sa_best"]
 
@@ -363,7 +403,9 @@ def test_stock_shared_between_channels_is_explained():
     sw = inv.switches.copy()
     sw["stock"] = 1.0  # every part once
     inv = dataclasses.replace(inv, switches=sw)
-    chans = tuple(Channel(f"lamp {i}", 12.0, 1.0, drive=12.0) for i in range(len(sw) + 1))
+    chans = tuple(
+        Channel(f"lamp {i}", 12.0, 1.0, drive=12.0) for i in range(len(sw) + 1)
+    )
     res = pipeline.select(inv, Design(Conditions(max_parallel=1), chans), top=1)
     assert res.status == "infeasible"
     text = " ".join(r for info in res.infeasible.values() for r in info["reasons"])
@@ -411,12 +453,16 @@ def test_why_gives_the_rule_for_a_refused_part(demo):
 def test_why_prices_a_passing_part_that_lost(demo, demo_result):
     inv, design = demo
     chosen = demo_result.solutions[0].pick("frost heater").switch
-    sc = screen_channel(inv, design.channel("frost heater"), design.conditions, Settings())
+    sc = screen_channel(
+        inv, design.channel("frost heater"), design.conditions, Settings()
+    )
     other = next(p for p in sc.passed["part"].unique() if p != chosen)
     text = pipeline.why(inv, design, "frost heater", other)
     assert other in text
-    assert ("whole board would cost" in text) or ("no candidate build" in text) or (
-        "no feasible selection" in text
+    assert (
+        ("whole board would cost" in text)
+        or ("no candidate build" in text)
+        or ("no feasible selection" in text)
     )
 
 
@@ -424,3 +470,39 @@ def test_why_unknown_channel_is_a_design_error(demo):
     inv, design = demo
     with pytest.raises(DesignError, match="no channel named 'attic fan'"):
         pipeline.why(inv, design, "attic fan", "DEMO-N40-7")
+
+
+def test_each_copy_has_its_own_sink_in_the_final_evaluation():
+    """overview.md: ``quantity`` copies each get their own parts and sink. For a channel
+    on its own sink the reported sink temperature balances one copy's heat only
+    (physics.md §7.2 lumped sink): Ts = Ta + rise(n·P(Tj)), Tj = Ts + P·(RθJC + RθCS)."""
+    rng = np.random.default_rng(3)
+    inv = small_inventory(rng)
+    ch = Channel("heater", 24.0, 20.0, drive=12.0, quantity=2)
+    design = Design(Conditions(ambient_max=45.0, max_parallel=2), (ch,))
+    res = pipeline.select(inv, design, top=3)
+    table = heatsinks.sink_operating_table(inv.heatsinks, inv.sink_airflow, 0.0, 0.0)
+    checked = 0
+    for sol in res.solutions:
+        p = sol.pick("heater")
+        if p.heatsink is None:
+            continue
+        r = screen_row(inv, design, p)
+        rcs = float(inv.interfaces.set_index("part").at[p.interface, "rth_cs"])
+        tj = p.details["chain"]["tj_steady_c"]
+        power = float(r["p0_w"]) + float(r["p1_w_per_k"]) * (tj - 25.0)
+        ts = p.sink_temperature
+        assert tj == pytest.approx(
+            ts + power * (float(r["rth_jc_k_per_w"]) + rcs), abs=1e-3
+        )
+        one = table[table["part"] == p.heatsink]
+        rise = float(
+            np.asarray(
+                heatsinks.sink_rise(
+                    one, np.asarray(p.switch_count * power), outer=False
+                )
+            ).reshape(-1)[0]
+        )
+        assert ts == pytest.approx(45.0 + rise, abs=1e-3)
+        checked += 1
+    assert checked >= 1
