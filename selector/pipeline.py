@@ -55,6 +55,7 @@ CURVE_POINTS = 21  # ambient points of the Tj-over-ambient curve
 HOT_SINK_C = (
     60.0  # [°C] above this a sink gets the hot-surface caution (common practice)
 )
+SINK_HELD_J_PER_K = 1e12  # [J/K] stands for "sink does not move during a surge"
 TIME_LIMIT_DIAGNOSIS = 5.0  # [s] per sub-problem when looking for the infeasible part
 
 __all__ = ["evaluate_solution", "format_result", "screen_all", "select", "why"]
@@ -356,6 +357,11 @@ def _transient(
     cap = math.nan
     if sink_one is not None and "heat_capacity_j_per_k" in sink_one:
         cap = _f(sink_one["heat_capacity_j_per_k"].iloc[0])
+    if b.sink is not None and not (math.isfinite(cap) and cap > 0):
+        # Heat capacity unknown: hold the sink at its steady temperature through the
+        # surge, the same time-scale separation the feasibility check uses (physics
+        # reference §8.4, approach 1: a sink's time constant is minutes).
+        cap = SINK_HELD_J_PER_K
     if b.sink is None:
         rcs, rsa, n = 0.0, max(_f(b.row.get("rth_ja_k_per_w")) - rjc, 0.0), 1
     else:
