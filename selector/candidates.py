@@ -371,8 +371,8 @@ def tab_nodes(
     kind = np.asarray(kind, dtype=object)
     side = np.asarray(side, dtype=object)
     t = pd.Series(np.asarray(tab, dtype=object), dtype=object)
-    t = t.where(t.map(lambda x: isinstance(x, str) and x != ""), "drain")
-    tab = t.astype(str).str.lower().to_numpy(dtype=object)
+    t = t.where(t.notna(), "").astype(str).str.lower()
+    tab = t.where(~t.isin(["", "nan", "none"]), "drain").to_numpy(dtype=object)
     n = len(tab)
     load = f"{channel}:load"
     rail = f"rail:{float(supply):g}V"
@@ -762,20 +762,47 @@ def _own_sink_rows(
     return pd.concat(out, ignore_index=True), unmatched
 
 
-def _prune_ungrouped(
-    cand: pd.DataFrame, prune: PruneSettings, board_demand: dict[str, float]
-) -> tuple[pd.DataFrame, dict[str, float]]:
-    """The cost-order rule for an ungrouped channel (see the comment block above).
+def _prefix_rule(
+    cost: np.ndarray,
+    margin: np.ndarray,
+    klass: np.ndarray,
+    parts: np.ndarray,
+    safe: np.ndarray,
+    prune: PruneSettings,
+) -> tuple[np.ndarray, dict[str, float]]:
+    """The cost-order rule on plain arrays: (keep mask, stop cost per class)."""
+    n = len(cost)
+    keep = np.zeros(n, dtype=bool)
+    stops: dict[str, float] = {}
+    if n == 0:
+        return keep, stops
+    order = np.lexsort((-np.nan_to_num(margin, nan=-np.inf), cost))
+    k_codes, k_uniq = pd.factorize(pd.Series(klass[order], dtype=object))
+    p_codes, _ = pd.factorize(pd.Series(parts[order], dtype=object))
+    for ki, k in enumerate(k_uniq):
+        idx = order[k_codes == ki]
+        pc = p_codes[k_codes == ki]
+        # rank of each item within its part (items are in cost order)
+        srt = np.argsort(pc, kind="stable")
+        first = np.r_[True, pc[srt][1:] != pc[srt][:-1]]
+        grp_start = np.maximum.accumulate(np.where(first, np.arange(len(srt)), 0))
+        rank = np.empty(len(srt), dtype=int)
+        rank[srt] = np.arange(len(srt)) - grp_start
+        distinct = np.cumsum(rank == 0)
+        done = (distinct >= prune.keep_parts) & (np.cumsum(safe[idx]) > 0)
+        if done.any():
+            stop = int(np.argmax(done))
+            stops[str(k)] = float(cost[idx[stop]])
+        else:
+            stop = len(idx) - 1
+            stops[str(k)] = math.inf
+        sel = idx[: stop + 1][rank[: stop + 1] < prune.per_part]
+        keep[sel] = True
+    return keep, stops
 
-    Returns the kept candidates and, per class of accessory needs, the cost at which
-    the rule stopped (inf where it never stopped: every candidate of the class kept).
-    """
-    if len(cand) == 0:
-        return cand, {}
-    cand = cand.sort_values(
-        ["cost", "margin_k"], ascending=[True, False], kind="stable"
-    ).reset_index(drop=True)
-    safe = (
+
+def _safe_mask(cand: pd.DataFrame, board_demand: dict[str, float]) -> np.ndarray:
+    return (
         stock_allows(cand["switch_stock"], board_demand["switches"])
         & (
             cand["interface"].eq("").to_numpy()
@@ -786,27 +813,31 @@ def _prune_ungrouped(
             | stock_allows(cand["sink_stock"], board_demand["heatsinks"])
         )
     )
-    keep = np.zeros(len(cand), dtype=bool)
-    stops: dict[str, float] = {}
-    klass = _need_class(cand)
-    cost = cand["cost"].to_numpy(float)
-    for k, idx in pd.Series(klass).groupby(klass, sort=False).indices.items():
-        idx = np.sort(idx)
-        parts = cand["switch"].to_numpy()[idx]
-        rank_in_part = pd.Series(parts).groupby(parts).cumcount().to_numpy()
-        first_of_part = rank_in_part == 0
-        distinct = np.cumsum(first_of_part)
-        seen_safe = np.cumsum(safe[idx]) > 0
-        done = (distinct >= prune.keep_parts) & seen_safe
-        if done.any():
-            stop = int(np.argmax(done))
-            stops[k] = float(cost[idx[stop]])
-        else:
-            stop = len(idx) - 1
-            stops[k] = math.inf
-        sel = idx[: stop + 1][rank_in_part[: stop + 1] < prune.per_part]
-        keep[sel] = True
-    return cand[keep].reset_index(drop=True), stops
+
+
+def _prune_ungrouped(
+    cand: pd.DataFrame, prune: PruneSettings, board_demand: dict[str, float]
+) -> tuple[pd.DataFrame, dict[str, float]]:
+    """The cost-order rule for an ungrouped channel (see "Pruning").
+
+    Returns the kept candidates (cheapest first) and, per class of accessory needs, the
+    cost at which the rule stopped (inf where it never stopped).
+    """
+    if len(cand) == 0:
+        return cand, {}
+    keep, stops = _prefix_rule(
+        cand["cost"].to_numpy(float),
+        cand["margin_k"].to_numpy(float),
+        _need_class(cand),
+        cand["switch"].to_numpy(dtype=object),
+        _safe_mask(cand, board_demand),
+        prune,
+    )
+    kept = cand[keep]
+    kept = kept.sort_values(
+        ["cost", "margin_k"], ascending=[True, False], kind="stable"
+    )
+    return kept.reset_index(drop=True), stops
 
 
 def _need_class(df: pd.DataFrame) -> np.ndarray:
@@ -856,8 +887,14 @@ def _ungrouped_table(
         step *= 2
         if i >= len(opts):
             break
-        _, stops = _prune_ungrouped(
-            pd.concat(found, ignore_index=True), prune, board_demand
+        cur = pd.concat(found, ignore_index=True)
+        _, stops = _prefix_rule(
+            cur["cost"].to_numpy(float),
+            cur["margin_k"].to_numpy(float),
+            _need_class(cur),
+            cur["switch"].to_numpy(dtype=object),
+            _safe_mask(cur, board_demand),
+            prune,
         )
         nxt = base_cost[i]
         remaining = [k for k, lp in last.items() if lp >= i]
@@ -1137,18 +1174,30 @@ def _reduce_group(
         window = cost_lo <= limit
         sink_ok = price <= ub - lb_sum + slack
     kept_sinks = sinks[sink_ok]
+    kpos = pos[sink_ok]
+    kprice = price[sink_ok]
+    chunk = max(int(2_000_000 // max(kept_sinks.size, 1)), 1000)
+    st = table.iloc[kept_sinks]
+    pk_codes, pk_uniq = pd.factorize(rows["package"].astype(str))
+    fit_tab = _fit_matrix(st, np.asarray(pk_uniq, dtype=object))  # (S, packages)
+
+    def pmax_chunks(idx: np.ndarray):
+        """(rows, Pmax block (rows × sinks)) over ``idx`` in chunks: bounded memory."""
+        for c0 in range(0, idx.size, chunk):
+            ix = idx[c0 : c0 + chunk]
+            hh = h[ix]
+            cap = _heatsinks.sink_max_power(st, np.where(hh > 0, hh, 0.0))
+            fit = fit_tab[:, pk_codes[ix]] & (hh[None, :] > 0)
+            yield ix, np.where(fit, np.where(np.isfinite(cap), cap, 1e12), 0.0).T
+
+    # 2. alone on some sink of the window
     cand_idx = np.flatnonzero(window & usable)
     possible = np.zeros(len(rows), dtype=bool)
     if cand_idx.size and kept_sinks.size:
-        pm = _group_pmax(rows.iloc[cand_idx], table, kept_sinks)
-        alone = (pm >= heat[cand_idx, None] - 1e-12) & (pm > 0)
-        alone &= pos[sink_ok][None, :] >= dev[cand_idx, None]
-        possible[cand_idx[alone.any(axis=1)]] = True
-    # 3. per-sink bound: on sink s every member c needs Pmax(k, s) ≥ its own heat plus
-    #    the least heat the others can bring, so the group costs at least
-    #    LB(s) = price_s + Σ_c LB_c(s); a sink with LB(s) > UB + slack is out, and a
-    #    candidate is kept only on a sink where price_s + cost_k + Σ_{c'≠c} LB_c'(s)
-    #    ≤ UB + slack (exact relaxation: it ignores only the coupling it bounds).
+        for ix, pm in pmax_chunks(cand_idx):
+            alone = (pm >= heat[ix, None] - 1e-12) & (pm > 0)
+            alone &= kpos[None, :] >= dev[ix, None]
+            possible[ix[alone.any(axis=1)]] = True
     # builds of one part that another build of the same part dominates go first
     # (step 4's first half; done here because it is cheap and shrinks step 3)
     klass_all = (
@@ -1171,62 +1220,80 @@ def _reduce_group(
             vals_all[pidx],
         )
         useful_mask[pidx[own]] = True
+    # 3. per-sink bound: on sink s every member c needs Pmax(k, s) ≥ its own heat plus
+    #    the least heat (and positions) the others can bring, so the group costs at
+    #    least LB(s) = price_s + Σ_c LB_c(s); a sink with LB(s) > UB + slack is out, and
+    #    a build is kept only on a sink where price_s + cost_k + Σ_{c'≠c} LB_c'(s) ≤
+    #    UB + slack (an exact relaxation). Three chunked passes keep memory bounded.
     kidx = np.flatnonzero(useful_mask)
     if kidx.size and kept_sinks.size:
-        pm = _group_pmax(rows.iloc[kidx], table, kept_sinks)  # (K, S)
-        kpos = _num(table, "positions", 1.0)[kept_sinks]
-        kprice = _num(table, "price")[kept_sinks]
-        kc = chan[kidx]
-        kh, kd, kcost = heat[kidx], dev[kidx], cost_lo[kidx]
-        alone = (pm >= kh[:, None]) & (pm > 0) & (kpos[None, :] >= kd[:, None])
-        minheat = {}
-        mindev = {}
-        for m in members:
-            sel = kc == m
-            minheat[m] = np.min(
-                np.where(alone[sel], kh[sel, None], np.inf), axis=0, initial=np.inf
-            )
-            mindev[m] = np.min(
-                np.where(alone[sel], kd[sel, None], np.inf), axis=0, initial=np.inf
-            )
+        n_s = kept_sinks.size
+        inf = np.full(n_s, np.inf)
+        minheat = {m: inf.copy() for m in members}
+        mindev = {m: inf.copy() for m in members}
+        for ix, pm in pmax_chunks(kidx):
+            alone = (pm >= heat[ix, None]) & (pm > 0) & (kpos[None, :] >= dev[ix, None])
+            for m in members:
+                sel = chan[ix] == m
+                if sel.any():
+                    minheat[m] = np.minimum(
+                        minheat[m],
+                        np.min(
+                            np.where(alone[sel], heat[ix][sel, None], np.inf), axis=0
+                        ),
+                    )
+                    mindev[m] = np.minimum(
+                        mindev[m],
+                        np.min(
+                            np.where(alone[sel], dev[ix][sel, None], np.inf), axis=0
+                        ),
+                    )
 
-        def others(values: dict[str, np.ndarray]) -> np.ndarray:
-            """(K, S): for each kept row, the sum over the other members."""
-            per_m = {
-                m: sum(
-                    (values[o] for o in members if o != m), np.zeros(kept_sinks.size)
-                )
+        def others(values: dict[str, np.ndarray]) -> dict[str, np.ndarray]:
+            """Per member: the sum over the other members, per sink."""
+            return {
+                m: sum((values[o] for o in members if o != m), np.zeros(n_s))
                 for m in members
             }
-            return np.stack([per_m[c] for c in kc])
 
-        other_h = others(minheat)
-        other_d = others(mindev)
-        ok = (
-            alone
-            & (pm >= kh[:, None] + other_h)
-            & (kpos[None, :] >= kd[:, None] + other_d)
-        )
-        lbs = {}
-        for m in members:
-            sel = kc == m
-            lbs[m] = np.min(
-                np.where(ok[sel], kcost[sel, None], np.inf), axis=0, initial=np.inf
+        oh, od = others(minheat), others(mindev)
+
+        def ok_block(ix: np.ndarray, pm: np.ndarray) -> np.ndarray:
+            kc = chan[ix]
+            o_h = np.stack([oh[c] for c in kc])
+            o_d = np.stack([od[c] for c in kc])
+            return (
+                (pm >= heat[ix, None])
+                & (pm > 0)
+                & (pm >= heat[ix, None] + o_h)
+                & (kpos[None, :] >= dev[ix, None] + o_d)
             )
+
+        lbs = {m: inf.copy() for m in members}
+        for ix, pm in pmax_chunks(kidx):
+            ok = ok_block(ix, pm)
+            for m in members:
+                sel = chan[ix] == m
+                if sel.any():
+                    lbs[m] = np.minimum(
+                        lbs[m],
+                        np.min(
+                            np.where(ok[sel], cost_lo[ix][sel, None], np.inf), axis=0
+                        ),
+                    )
         lb_all = sum(lbs.values()) + kprice
-        if math.isfinite(ub):
-            slack = prune.ranking_slack * ub + 1e-9
-            sink_useful = lb_all <= ub + slack
-            other_lb = others(lbs) + kprice[None, :]
-            useful = (
-                ok & sink_useful[None, :] & (other_lb + kcost[:, None] <= ub + slack)
-            )
-        else:
-            sink_useful = np.isfinite(lb_all)
-            useful = ok & sink_useful[None, :]
-        drop = ~useful.any(axis=1)
-        useful_mask[kidx[drop]] = False
-        kept_sinks = kept_sinks[sink_useful & useful.any(axis=0)]
+        bound = ub + prune.ranking_slack * ub + 1e-9 if math.isfinite(ub) else math.inf
+        sink_useful = (lb_all <= bound) if math.isfinite(ub) else np.isfinite(lb_all)
+        olb = others(lbs)
+        used_sink = np.zeros(n_s, dtype=bool)
+        for ix, pm in pmax_chunks(kidx):
+            useful = ok_block(ix, pm) & sink_useful[None, :]
+            if math.isfinite(ub):
+                o_lb = np.stack([olb[c] for c in chan[ix]]) + kprice[None, :]
+                useful &= o_lb + cost_lo[ix, None] <= bound
+            useful_mask[ix[~useful.any(axis=1)]] = False
+            used_sink |= useful.any(axis=0)
+        kept_sinks = kept_sinks[sink_useful & used_sink]
     # 4. dominance (builds of one part first, then layers over the parts)
     keep = np.zeros(len(rows), dtype=bool)
     idx_possible = np.flatnonzero(useful_mask)

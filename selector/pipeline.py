@@ -967,14 +967,10 @@ def explain_infeasible(
             )
             nm = _thermal_near_miss(inventory, design, ch, cc, cset.sink_table)
         for rid, n in funnel.items():
-            text = _screening.RULES.get(rid) and rid or rid
+            what = _cand.CANDIDATE_RULES.get(rid)
             reasons.append(
-                f"{n} removed by rule '{text}'"
-                + (
-                    f" ({_cand.CANDIDATE_RULES[rid]})"
-                    if rid in _cand.CANDIDATE_RULES
-                    else ""
-                )
+                f"{n} part × count rows removed by rule '{rid}'"
+                + (f" ({what})" if what else "")
             )
         out[ch.name] = {
             "reasons": reasons,
@@ -985,6 +981,21 @@ def explain_infeasible(
         }
         if nm is not None:
             reasons.append(nm.description)
+    if res.status == "no_candidates":
+        # candidates exist but none is usable (e.g. an accessory nobody stocks)
+        prep = _opt.prepare(problem)
+        for ch in design.channels:
+            if ch.name in out or prep.cand_of[ch.name].size:
+                continue
+            reasons = [
+                f"{n} of its builds: {why}"
+                for why, n in res.unusable.get(ch.name, {}).items()
+            ] or ["none of its builds can be used"]
+            out[ch.name] = {
+                "reasons": reasons,
+                "funnel": _funnel(screens.get(ch.name), cset.channels[ch.name]),
+                "nearest_miss": None,
+            }
     if bad or res.status != "infeasible":
         return out
     # every channel has candidates: find the part of the board that fails on its own

@@ -223,8 +223,37 @@ def split_number(text: str) -> tuple[str, str, str, str] | None:
     return m["sign"], m["num"], m["exp"] or "", m["unit"]
 
 
+def _number_marks(nums: pd.Series) -> tuple[pd.Series, ...] | None:
+    """The separator classes of number texts (see :func:`_normalise_number_strings`):
+    has_dot, has_com, amb_dot, amb_com, single_dot, single_com; None without any mark.
+    """
+    has_dot = nums.str.contains(".", regex=False)
+    has_com = nums.str.contains(",", regex=False)
+    if not (has_dot.any() or has_com.any()):
+        return None
+    amb_dot = has_dot & ~has_com & nums.str.fullmatch(r"[1-9]\d{0,2}\.\d{3}")
+    amb_com = has_com & ~has_dot & nums.str.fullmatch(r"[1-9]\d{0,2},\d{3}")
+    single_dot = has_dot & ~has_com & nums.str.fullmatch(r"\d*\.\d*") & ~amb_dot
+    single_com = has_com & ~has_dot & nums.str.fullmatch(r"\d*,\d*") & ~amb_com
+    return has_dot, has_com, amb_dot, amb_com, single_dot, single_com
+
+
+def _decide_decimal(
+    decimal: str | None, ambiguous: bool, point_ev: bool, comma_ev: bool
+) -> str | None:
+    """The decimal mark for a column's ambiguous numbers: the file's, else the one its
+    unambiguous numbers all use (``point_ev``/``comma_ev``: some use ``.``/``,``)."""
+    if decimal is None and ambiguous and point_ev != comma_ev:
+        return "." if point_ev else ","
+    return decimal
+
+
 def _normalise_number_strings(
-    nums: pd.Series, decimal: str | None
+    nums: pd.Series,
+    decimal: str | None,
+    *,
+    infer: bool = True,
+    marks: tuple[pd.Series, ...] | None | bool = False,
 ) -> tuple[pd.Series, pd.Series]:
     """Turn number texts with ``.``/``,`` into plain decimal-point texts.
 
@@ -233,25 +262,25 @@ def _normalise_number_strings(
     thousands; a single mark before exactly three digits after 1–3 digits is ambiguous and
     decided by ``decimal`` (the file's convention) or, failing that, by the column's own
     unambiguous numbers when they all use one mark; else refused. Any other single mark is
-    the decimal mark.
+    the decimal mark. With ``infer=False`` the texts' own numbers decide nothing:
+    ``decimal`` is then already the whole column's decision. ``marks`` may bring the
+    texts' :func:`_number_marks` when already known.
     """
     out = nums.copy()
     reasons = pd.Series(None, index=nums.index, dtype=object)
-    has_dot = nums.str.contains(".", regex=False)
-    has_com = nums.str.contains(",", regex=False)
-    if not (has_dot.any() or has_com.any()):
+    if marks is False:
+        marks = _number_marks(nums)
+    if marks is None:
         return out, reasons
-    amb_dot = has_dot & ~has_com & nums.str.fullmatch(r"[1-9]\d{0,2}\.\d{3}")
-    amb_com = has_com & ~has_dot & nums.str.fullmatch(r"[1-9]\d{0,2},\d{3}")
-    single_dot = has_dot & ~has_com & nums.str.fullmatch(r"\d*\.\d*") & ~amb_dot
-    single_com = has_com & ~has_dot & nums.str.fullmatch(r"\d*,\d*") & ~amb_com
+    has_dot, has_com, amb_dot, amb_com, single_dot, single_com = marks
     out[single_com] = nums[single_com].str.replace(",", ".", regex=False)
-    if decimal is None and (amb_dot.any() or amb_com.any()):
-        # the column's own unambiguous numbers tell its decimal mark, if they agree
-        point_ev = bool(single_dot.any())
-        comma_ev = bool(single_com.any())
-        if point_ev != comma_ev:
-            decimal = "." if point_ev else ","
+    if infer:  # else ``decimal`` is already the column's (None: undecided)
+        decimal = _decide_decimal(
+            decimal,
+            bool(amb_dot.any() or amb_com.any()),
+            bool(single_dot.any()),
+            bool(single_com.any()),
+        )
     # ambiguous ones, by the file's (or column's) convention
     if amb_dot.any():
         if decimal == ",":
@@ -417,8 +446,14 @@ def _parse_quantity_series(
     out = np.full(n, np.nan)
     why_out = np.full(n, None, dtype=object)
     obj = values.to_numpy(dtype=object)
-    is_str = np.fromiter((isinstance(v, str) for v in obj), dtype=bool, count=n)
-    is_num = np.fromiter((_is_plain_number(v) for v in obj), dtype=bool, count=n)
+    dtype = values.dtype
+    if isinstance(dtype, pd.StringDtype) and dtype.na_value is np.nan:
+        # a text column: every cell is text or NaN (NaN counts as a number, as below)
+        is_num = values.isna().to_numpy(dtype=bool)
+        is_str = ~is_num
+    else:
+        is_str = np.fromiter((isinstance(v, str) for v in obj), dtype=bool, count=n)
+        is_num = np.fromiter((_is_plain_number(v) for v in obj), dtype=bool, count=n)
     # numbers stored as numbers (spreadsheet cells): bare numbers in the header unit
     if is_num.any():
         arr = obj[is_num].astype(float)
@@ -443,51 +478,111 @@ def _parse_quantity_series(
     if not is_str.any():
         return finish()
 
-    str_pos = np.flatnonzero(is_str)
-    text = pd.Series(obj[is_str], dtype=object).str.strip()
+    # cells that are only digits with at most one point take a short way (below)
+    plain = _plain_decimal_cells(values)
+    if plain is not None:
+        plain &= is_str
+    slow = is_str if plain is None else is_str & ~plain
+    str_pos = np.flatnonzero(slow)
+    text = pd.Series(obj[slow], dtype=object).str.strip()
     keep = ~text.str.lower().isin(_BLANK_TOKENS).to_numpy(dtype=bool)
     str_pos = str_pos[keep]
     text = text[keep].reset_index(drop=True)
-    if len(text) == 0:
+    parts = text.str.extract(_SPLIT_RE) if len(text) else None
+    if parts is not None:
+        no_num = parts["num"].isna().to_numpy(dtype=bool)
+        for i in np.flatnonzero(no_num):
+            cell = text.iloc[i]
+            if cell.startswith("#") and cell.endswith(("!", "?", "A")):
+                why_out[str_pos[i]] = "a spreadsheet error value, not a number"
+            else:
+                why_out[str_pos[i]] = "not a number"
+        has = ~no_num
+        parts = parts[has].reset_index(drop=True)
+        text = text[has].reset_index(drop=True)
+        str_pos = str_pos[has]
+        if len(parts) == 0:
+            parts = None
+    fast_pos = np.flatnonzero(plain) if plain is not None else np.zeros(0, np.int64)
+    if parts is None and not len(fast_pos):
         return finish()
-    parts = text.str.extract(_SPLIT_RE)
-    no_num = parts["num"].isna().to_numpy(dtype=bool)
-    for i in np.flatnonzero(no_num):
-        cell = text.iloc[i]
-        if cell.startswith("#") and cell.endswith(("!", "?", "A")):
-            why_out[str_pos[i]] = "a spreadsheet error value, not a number"
-        else:
-            why_out[str_pos[i]] = "not a number"
-    has = ~no_num
-    parts = parts[has].reset_index(drop=True)
-    text = text[has].reset_index(drop=True)
-    str_pos = str_pos[has]
-    if len(parts) == 0:
-        return finish()
-    norm, why = _normalise_number_strings(parts["num"].astype(object), decimal)
-    bad = why.notna().to_numpy(dtype=bool)
-    for i in np.flatnonzero(bad):
-        if why.iloc[i] == "ambiguous":
-            why_out[str_pos[i]] = (
-                f"ambiguous number: is the separator in '{parts['num'].iloc[i]}' a thousands "
-                "separator or a decimal mark? Write it without grouping (e.g. 1250 or 1.25)"
-            )
-        else:
-            why_out[str_pos[i]] = "not a number"
-    ok = ~bad
-    parts = parts[ok].reset_index(drop=True)
-    text = text[ok].reset_index(drop=True)
-    norm = norm[ok].reset_index(drop=True)
-    str_pos = str_pos[ok]
-    if len(parts) == 0:
-        return finish()
-    num = pd.to_numeric(norm, errors="coerce").to_numpy(dtype=float)
-    exp_txt = parts["exp"].fillna("0").astype(str).str.replace("−", "-", regex=False)
-    exp = pd.to_numeric(exp_txt, errors="coerce").to_numpy(dtype=float)
-    num = num * np.power(10.0, exp)
-    sign = parts["sign"].fillna("").to_numpy(dtype=object)
-    num = np.where((sign == "-") | (sign == "−"), -num, num)
-    units = parts["unit"].fillna("").astype(object).to_numpy()
+    # the decimal mark of the column's ambiguous numbers, from all its numbers
+    ambiguous = point_ev = comma_ev = False
+    marks = None
+    if parts is not None:
+        marks = _number_marks(parts["num"].astype(object))
+        if marks is not None:
+            _hd, _hc, amb_dot, amb_com, single_dot, single_com = marks
+            ambiguous = bool(amb_dot.any() or amb_com.any())
+            point_ev = bool(single_dot.any())
+            comma_ev = bool(single_com.any())
+    if len(fast_pos):
+        fast_num, fast_amb, fast_dot = _plain_decimal_texts(values, fast_pos)
+        ambiguous = ambiguous or bool(fast_amb.any())
+        point_ev = point_ev or bool((fast_dot & ~fast_amb).any())
+    decimal = _decide_decimal(decimal, ambiguous, point_ev, comma_ev)
+
+    def ambiguous_msg(num_text: str) -> str:
+        return (
+            f"ambiguous number: is the separator in '{num_text}' a thousands "
+            "separator or a decimal mark? Write it without grouping (e.g. 1250 or 1.25)"
+        )
+
+    cells: list[tuple[np.ndarray, np.ndarray]] = []  # (positions, number texts)
+    if parts is not None:
+        norm, why = _normalise_number_strings(
+            parts["num"].astype(object), decimal, infer=False, marks=marks
+        )
+        bad = why.notna().to_numpy(dtype=bool)
+        for i in np.flatnonzero(bad):
+            if why.iloc[i] == "ambiguous":
+                why_out[str_pos[i]] = ambiguous_msg(parts["num"].iloc[i])
+            else:
+                why_out[str_pos[i]] = "not a number"
+        ok = ~bad
+        parts = parts[ok].reset_index(drop=True)
+        str_pos = str_pos[ok]
+        cells.append((str_pos, norm[ok].to_numpy(dtype=object)))
+    else:
+        str_pos = np.zeros(0, dtype=np.int64)
+    if len(fast_pos):
+        # as the general way treats them: no sign, exponent or unit; one point
+        fast_norm = fast_num
+        if fast_amb.any():
+            if decimal == ",":
+                fast_norm = fast_num.copy()
+                fast_norm[fast_amb] = [t.replace(".", "") for t in fast_num[fast_amb]]
+            elif decimal is None:
+                for i in np.flatnonzero(fast_amb):
+                    why_out[fast_pos[i]] = ambiguous_msg(fast_num[i])
+                fast_pos = fast_pos[~fast_amb]
+                fast_norm = fast_num[~fast_amb]
+        cells.append((fast_pos, fast_norm))
+    # the number texts of the whole column read at once, in its order (as before)
+    all_pos = np.concatenate([c[0] for c in cells])
+    order = np.argsort(all_pos, kind="stable")
+    all_num = pd.Series(np.concatenate([c[1] for c in cells])[order], dtype=object)
+    num_all = np.empty(n)
+    num_all[all_pos[order]] = pd.to_numeric(all_num, errors="coerce").to_numpy(
+        dtype=float
+    )
+    num = num_all[str_pos]
+    if len(str_pos):
+        exp_txt = (
+            parts["exp"].fillna("0").astype(str).str.replace("−", "-", regex=False)
+        )
+        exp = pd.to_numeric(exp_txt, errors="coerce").to_numpy(dtype=float)
+        num = num * np.power(10.0, exp)
+        sign = parts["sign"].fillna("").to_numpy(dtype=object)
+        num = np.where((sign == "-") | (sign == "−"), -num, num)
+        units = parts["unit"].fillna("").astype(object).to_numpy()
+    else:
+        units = np.zeros(0, dtype=object)
+    if len(fast_pos):
+        # bare numbers (exponent 0 and no sign leave them as read): unit ""
+        num = np.concatenate([num, num_all[fast_pos]])
+        units = np.concatenate([units, np.full(len(fast_pos), "", dtype=object)])
+        str_pos = np.concatenate([str_pos, fast_pos])
     codes, uniques = pd.factorize(units)
     for code, unit_text in enumerate(uniques):
         sel = np.flatnonzero(codes == code)
@@ -504,6 +599,50 @@ def _parse_quantity_series(
             msg = f"'{unit_text}' {why2}"
         why_out[str_pos[sel]] = msg
     return finish()
+
+
+_PLAIN_DECIMAL = r"^[0-9]+(?:\.[0-9]+)?$"
+_AMBIGUOUS_POINT = r"^[1-9][0-9]{0,2}\.[0-9]{3}$"
+
+
+def _plain_decimal_cells(values: pd.Series) -> np.ndarray | None:
+    """Cells of a pyarrow-backed text column that are only ASCII digits with at most
+    one point inside (``12``, ``4.75``); None for other columns.
+
+    Such a cell has no sign, exponent or unit and splits into itself as the number,
+    whichever regular-expression engine reads it.
+    """
+    dtype = values.dtype
+    if not (isinstance(dtype, pd.StringDtype) and dtype.storage == "pyarrow"):
+        return None
+    try:
+        import pyarrow as pa
+        import pyarrow.compute as pc
+
+        arr = pa.array(values.array)
+        hit = pc.fill_null(pc.match_substring_regex(arr, _PLAIN_DECIMAL), False)
+        return np.asarray(hit.to_numpy(zero_copy_only=False), dtype=bool).copy()
+    except Exception:  # noqa: BLE001 - the general way handles every cell
+        return None
+
+
+def _plain_decimal_texts(
+    values: pd.Series, pos: np.ndarray
+) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+    """The texts of the plain-decimal cells at ``pos`` (object array), which of them
+    are ambiguous (``1.250``: 1–3 digits, a point, three digits) and which have a
+    point."""
+    import pyarrow as pa
+    import pyarrow.compute as pc
+
+    arr = pa.array(values.array).take(pa.array(pos))
+    amb = pc.match_substring_regex(arr, _AMBIGUOUS_POINT)
+    dot = pc.match_substring(arr, ".")
+    return (
+        np.asarray(arr.to_numpy(zero_copy_only=False), dtype=object),
+        np.asarray(amb.to_numpy(zero_copy_only=False), dtype=bool),
+        np.asarray(dot.to_numpy(zero_copy_only=False), dtype=bool),
+    )
 
 
 def _number_text(num: str, decimal: str | None) -> tuple[str | None, str | None]:
