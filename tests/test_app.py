@@ -10,9 +10,7 @@ from __future__ import annotations
 from pathlib import Path
 
 import pytest
-
-pytest.importorskip("streamlit")
-from streamlit.testing.v1 import AppTest  # noqa: E402
+from streamlit.testing.v1 import AppTest
 
 APP = str(Path(__file__).resolve().parent.parent / "app.py")
 TIMEOUT = 180
