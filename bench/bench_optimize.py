@@ -38,7 +38,7 @@ sys.path.insert(0, str(Path(__file__).resolve().parent.parent))
 from selector import candidates as cand_mod  # noqa: E402
 from selector import heatsinks as hs_mod  # noqa: E402
 from selector import optimize as opt  # noqa: E402
-from selector import pipeline  # noqa: E402
+from selector import pipeline, screening  # noqa: E402
 from selector.inventory import Inventory, InventoryReport  # noqa: E402
 from selector.models import Channel, Conditions, Design, Settings  # noqa: E402
 
@@ -295,8 +295,12 @@ def board_design() -> Design:
 
 
 def naive_model(inventory, design, settings, time_limit: float):
-    """Every (switch, count, interface) × every fitting heatsink a variable; big-M group
-    rows; nothing pruned. Returns (cost or None, build s, solve s, size dict)."""
+    """The same selection written naively: every (switch, count, interface) × every
+    heatsink that fits is a binary variable (own sinks and group sinks alike), nothing
+    pruned; the shared-sink limit is a big-M row per (build, sink) on an auxiliary heat
+    variable per (group, sink). Stock (switches, interfaces, sinks, diodes, drivers),
+    positions, isolation (one live node per group sink) and accessories as in the real
+    model. Returns (cost or None, build s, solve s, size dict, solution status)."""
     import pulp
 
     t0 = time.perf_counter()
@@ -310,118 +314,175 @@ def naive_model(inventory, design, settings, time_limit: float):
     pos = table["positions"].to_numpy(float)
     stock_s = table["stock"].to_numpy(float)
     prob = pulp.LpProblem("naive", pulp.LpMinimize)
-    cost_terms = []
-    sw_use: dict[str, list] = {}
-    sink_use: dict[int, list] = {}
+    cost_terms: list = []
+    use: dict[tuple[str, str], list] = {}
+    rows: list = []
+    group_items: dict[str, list] = {}
     n_var = 0
-    group_heat: dict[str, list] = {}
-    rows = []
+
+    def var():
+        nonlocal n_var
+        n_var += 1
+        return prob.add_variable(f"v{n_var}", 0, 1, pulp.LpBinary)
+
+    enforce_driver = len(inventory.drivers) > 0
     for ch in design.channels:
-        passed = screens[ch.name].passed
+        passed = screens[ch.name].passed.reset_index(drop=True)
         if len(passed) == 0:
-            return None, 0.0, 0.0, {}
+            return None, 0.0, 0.0, {}, "no rows"
         q = ch.quantity
-        io = cand_mod._evaluate.interface_options(
-            passed.reset_index(drop=True), inventory.interfaces, cond
+        nodes, per_copy = cand_mod.tab_nodes(
+            passed["kind"], passed["side"], passed["tab"], ch.name, ch.supply
         )
-        opts = []
+        dneed = cand_mod._driver_need(
+            passed["driver_kind"].fillna("").astype(str).to_numpy(dtype=object),
+            passed["driver_v_min"].to_numpy(float),
+            passed["driver_v_max"].to_numpy(float),
+        )
+        builds = []  # (row, interface, sink or -1, cost, insulating, pmax, h)
         if not ch.heatsink_group:
-            air = passed[
-                (passed["tj_no_sink_peak_c"] <= passed["t_lim_c"])
-                & ~passed["runaway_no_sink"].astype(bool)
-            ]
-            for r in air.itertuples():
-                opts.append((r.part, r.count, "", -1, q * r.count * r.price))
-        this = []
+            ok = (passed["tj_no_sink_peak_c"] <= passed["t_lim_c"]) & ~passed[
+                "runaway_no_sink"
+            ].astype(bool)
+            for i in np.flatnonzero(ok.to_numpy()):
+                builds.append(
+                    (
+                        i,
+                        "",
+                        -1,
+                        q * passed.at[i, "count"] * passed.at[i, "price"],
+                        True,
+                        0,
+                        0,
+                    )
+                )
+        io = cand_mod._evaluate.interface_options(passed, inventory.interfaces, cond)
         pm_all = hs_mod.sink_max_power(
             table, np.maximum(io["h_k"].to_numpy(float), 0.0)
         )
         for j in range(len(io)):
-            r = passed.iloc[int(io["row"].iloc[j])]
-            pk = str(r["package"]).upper()
+            i = int(io["row"].iloc[j])
+            pk = str(passed.at[i, "package"]).upper()
             h = float(io["h_k"].iloc[j])
-            ptot = float(r["count"] * r["p_dev_w"])
-            base = q * r["count"] * (r["price"] + io["interface_price"].iloc[j])
-            for s in range(len(table)):
-                if pk not in fits[s]:
+            n = int(passed.at[i, "count"])
+            base = q * n * (passed.at[i, "price"] + io["interface_price"].iloc[j])
+            for s_ in range(len(table)):
+                if pk not in fits[s_] or h <= 0:
                     continue
-                pmax = float(pm_all[s, j]) if h > 0 else 0.0
-                this.append(
+                c = base if ch.heatsink_group else base + q * price_s[s_]
+                builds.append(
                     (
-                        r["part"],
-                        int(r["count"]),
+                        i,
                         io["interface"].iloc[j],
-                        s,
-                        base,
-                        ptot,
+                        s_,
+                        c,
+                        bool(io["insulating"].iloc[j]),
+                        float(pm_all[s_, j]),
                         h,
-                        pmax,
                     )
                 )
-        vars_c = []
-        for part, n, _i, _s, c in opts:
-            v = prob.add_variable(f"v{n_var}", 0, 1, pulp.LpBinary)
-            n_var += 1
-            vars_c.append(v)
+        vs = []
+        need_vars: dict[tuple[str, str], list] = {}
+        for i, itf_part, s_, c, insul, pmax, _h in builds:
+            n = int(passed.at[i, "count"])
+            ptot = n * float(passed.at[i, "p_dev_w"])
+            live = bool(nodes[i]) and not insul and s_ >= 0
+            if ch.heatsink_group and live and per_copy[i] and q > 1:
+                continue  # copies would put several live nodes on the group sink
+            v = var()
+            vs.append(v)
             cost_terms.append((v, c))
-            sw_use.setdefault(part, []).append((v, q * n))
-        for part, n, _i, s, base, ptot, _h, pmax in this:
-            v = prob.add_variable(f"v{n_var}", 0, 1, pulp.LpBinary)
-            n_var += 1
-            vars_c.append(v)
-            sw_use.setdefault(part, []).append((v, q * n))
+            use.setdefault(("switches", passed.at[i, "part"]), []).append((v, q * n))
+            if itf_part:
+                use.setdefault(("interfaces", itf_part), []).append((v, q * n))
+            if bool(passed.at[i, "needs_diode"]):
+                need_vars.setdefault(("diode", "freewheel"), []).append(v)
+            if dneed[i] and enforce_driver:
+                need_vars.setdefault(("driver", dneed[i]), []).append(v)
+            if s_ < 0:
+                continue
             if ch.heatsink_group:
-                cost_terms.append((v, base))
-                group_heat.setdefault(ch.heatsink_group, []).append(
-                    (v, q * ptot, s, pmax, n * q)
+                group_items.setdefault(ch.heatsink_group, []).append(
+                    (v, q * ptot, s_, pmax, n * q, nodes[i] if live else "")
                 )
             else:
-                cost_terms.append((v, base + q * price_s[s]))
-                sink_use.setdefault(s, []).append((v, q))
+                use.setdefault(("heatsinks", s_), []).append((v, q))
                 rows.append(pulp.LpAffineExpression([(v, ptot)]) <= pmax)
-                rows.append(pulp.LpAffineExpression([(v, n)]) <= pos[s])
-        rows.append(pulp.lpSum(vars_c) == 1)
-    for g, items in group_heat.items():
-        sinks = sorted(
-            {s for *_, s, _p, _n in [(a, b, c, d, e) for a, b, c, d, e in items]}
-        )
-        ys = {s: prob.add_variable(f"y_{g}_{s}", 0, 1, pulp.LpBinary) for s in sinks}
-        n_var += len(ys)
+                rows.append(pulp.LpAffineExpression([(v, n)]) <= pos[s_])
+        if not vs:
+            return None, 0.0, 0.0, {}, "no builds"
+        rows.append(pulp.lpSum(vs) == 1)
+        # accessories: one per copy, chosen among the parts that serve the need
+        for (role, need), needers in need_vars.items():
+            if role == "diode":
+                opts = screens[ch.name].diodes
+            else:
+                kind, window = need.split("@", 1)
+                lo, hi = window.split("-", 1)
+                opts = screening.driver_candidates(
+                    inventory.drivers,
+                    {
+                        "driver_kind": kind,
+                        "driver_v_min": float(lo) if lo else np.nan,
+                        "driver_v_max": float(hi) if hi else np.nan,
+                    },
+                    ch,
+                ).passed
+            avs = []
+            for part, price in zip(opts["part"], opts["price"], strict=True):
+                a = var()
+                avs.append(a)
+                cost_terms.append((a, q * float(price)))
+                use.setdefault((role + "s", part), []).append((a, q))
+            rows.append(pulp.lpSum(avs) == pulp.lpSum(needers))
+    for g, items in group_items.items():
+        sinks = sorted({it[2] for it in items})
+        ys = {s_: var() for s_ in sinks}
         rows.append(pulp.lpSum(ys.values()) == 1)
-        for s, y in ys.items():
-            cost_terms.append((y, price_s[s]))
-            sink_use.setdefault(s, []).append((y, 1))
-        big = sum(x[1] for x in items) + 1.0
-        # Q_s = heat on sink s (an auxiliary variable, so every big-M row stays short)
-        qs = {s: prob.add_variable(f"Q_{g}_{s}", 0, None) for s in sinks}
-        n_var += len(qs)
-        for s in sinks:
+        for s_, y in ys.items():
+            cost_terms.append((y, price_s[s_]))
+            use.setdefault(("heatsinks", s_), []).append((y, 1))
+        big = sum(it[1] for it in items) + 1.0
+        qs = {s_: prob.add_variable(f"Q_{g}_{s_}", 0, None) for s_ in sinks}
+        labels = sorted({it[5] for it in items if it[5]})
+        zs = {
+            lab: prob.add_variable(f"z_{g}_{k}", 0, 1) for k, lab in enumerate(labels)
+        }
+        if len(labels) > 1:
+            rows.append(pulp.lpSum(zs.values()) <= 1)
+        for s_ in sinks:
+            on = [it for it in items if it[2] == s_]
             rows.append(
                 pulp.LpAffineExpression(
-                    [(qs[s], 1.0)]
-                    + [(v, -hq) for v, hq, ss, _p, _n in items if ss == s]
+                    [(qs[s_], 1.0)] + [(v, -hq) for v, hq, *_ in on]
                 )
                 == 0
             )
             rows.append(
-                pulp.LpAffineExpression(
-                    [(v, dn) for v, _hq, ss, _p, dn in items if ss == s]
-                )
-                <= pos[s]
+                pulp.LpAffineExpression([(v, dn) for v, _h, _s, _p, dn, _l in on])
+                <= pos[s_]
             )
-        for v, _hq, s, pmax, _n in items:
-            rows.append(v <= ys[s])
-            rows.append(qs[s] + big * v <= pmax + big)
-    sw_stock = dict(
-        zip(inventory.switches["part"], inventory.switches["stock"], strict=True)
-    )
-    for part, uses in sw_use.items():
-        st = sw_stock.get(part, np.nan)
-        if np.isfinite(st):
-            rows.append(pulp.LpAffineExpression(uses) <= st)
-    for s, uses in sink_use.items():
-        if np.isfinite(stock_s[s]):
-            rows.append(pulp.LpAffineExpression(uses) <= stock_s[s])
+        for v, _hq, s_, pmax, _dn, lab in items:
+            rows.append(v <= ys[s_])
+            rows.append(qs[s_] + big * v <= pmax + big)
+            if lab and len(labels) > 1:
+                rows.append(v <= zs[lab])
+    stock = {
+        ("switches", p): st_
+        for p, st_ in zip(
+            inventory.switches["part"], inventory.switches["stock"], strict=True
+        )
+    }
+    for tab in ("interfaces", "diodes", "drivers"):
+        t = getattr(inventory, tab)
+        for p, st_ in zip(t["part"], t["stock"], strict=True):
+            stock[(tab, p)] = st_
+    for s_ in range(len(table)):
+        stock[("heatsinks", s_)] = stock_s[s_]
+    for key, terms in use.items():
+        st_ = stock.get(key, np.nan)
+        if np.isfinite(st_):
+            rows.append(pulp.LpAffineExpression(terms) <= st_)
     prob.setObjective(pulp.LpAffineExpression(cost_terms))
     for i, r in enumerate(rows):
         prob.addConstraint(r, f"r{i}")
@@ -437,9 +498,6 @@ def naive_model(inventory, design, settings, time_limit: float):
     ok = prob.sol_status in (pulp.LpSolutionOptimal, pulp.LpSolutionIntegerFeasible)
     cost = pulp.value(prob.objective) if ok else None
     return (cost, t1 - t0, t2 - t1, size, pulp.LpSolution[prob.sol_status])
-
-
-# --------------------------------------------------------------------------------------
 
 
 def timed_pick(inventory, design, settings, top: int, time_limit: float):
@@ -504,8 +562,10 @@ def main(argv=None) -> None:
     )
     t1, r1, _, c1 = timed_pick(inv, design, settings, 1, args.time_limit)
     report("whole-board pick (best solution)", t1, r1, c1)
+    del c1
     t5, r5, _, c5 = timed_pick(inv, design, settings, 5, args.time_limit)
     report("best 5 ranked solutions", t5, r5, c5)
+    del c5, inv
     print(
         f"\n  targets: pick {t1['total']:.2f} s (≤ 2 s: {'met' if t1['total'] <= 2 else 'missed'}); "
         f"best 5 {t5['total']:.2f} s (≤ 5 s: {'met' if t5['total'] <= 5 else 'missed'})"
