@@ -31,7 +31,7 @@ from hypothesis import strategies as st
 from scipy.optimize import Bounds, LinearConstraint, milp
 
 from selector.candidates import candidate_frame
-from selector.optimize import GroupSinks, SelectionProblem, solve
+from selector.optimize import GroupSinks, SelectionProblem, assignment_cost, solve
 
 pytestmark = pytest.mark.solver
 
@@ -315,6 +315,7 @@ def test_integer_program_matches_brute_force(seed):
     assert len(got) == min(3, len(ranked))
     for s in res.solutions:
         assert truth[s.signature] == pytest.approx(s.cost, abs=1e-6)
+        assert assignment_cost(prob, s) == pytest.approx(s.cost, abs=1e-6)
 
 
 # --------------------------------------------------------------------------------------
