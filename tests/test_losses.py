@@ -16,6 +16,7 @@ import math
 import numpy as np
 import pandas as pd
 import pytest
+from _shared import loss_switches
 from scipy.integrate import solve_ivp
 from scipy.optimize import minimize_scalar
 
@@ -29,29 +30,7 @@ def approx(x, rel=REL):
     return pytest.approx(x, rel=rel)
 
 
-def _switches(*rows: dict) -> pd.DataFrame:
-    cols = [
-        "part",
-        "kind",
-        "v_rating",
-        "rds_hot_ratio",
-        "vth_max",
-        "v_plateau",
-        "qg",
-        "qgs",
-        "qgd",
-        "rg_int",
-        "t_rise",
-        "t_fall",
-        "coss",
-        "vce_sat",
-        "vce_sat_i",
-        "e_on",
-        "e_off",
-        "e_test_v",
-        "e_test_i",
-    ]
-    return pd.DataFrame([{c: r.get(c, np.nan) for c in cols} for r in rows])
+_switches = loss_switches
 
 
 def _points(*rows: tuple[str, float, float]) -> pd.DataFrame:

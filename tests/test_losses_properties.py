@@ -17,6 +17,7 @@ import math
 import numpy as np
 import pandas as pd
 import pytest
+from _shared import LOSS_COLUMNS
 from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
 
@@ -29,27 +30,7 @@ PROFILE = settings(
     suppress_health_check=[HealthCheck.too_slow],
 )
 NAN = float("nan")
-COLUMNS = [
-    "part",
-    "kind",
-    "v_rating",
-    "rds_hot_ratio",
-    "vth_max",
-    "v_plateau",
-    "qg",
-    "qgs",
-    "qgd",
-    "rg_int",
-    "t_rise",
-    "t_fall",
-    "coss",
-    "vce_sat",
-    "vce_sat_i",
-    "e_on",
-    "e_off",
-    "e_test_v",
-    "e_test_i",
-]
+COLUMNS = LOSS_COLUMNS
 
 
 # ----------------------------------------------------------------------------- oracle

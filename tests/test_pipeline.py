@@ -16,6 +16,7 @@ import math
 import numpy as np
 import pandas as pd
 import pytest
+from _shared import CONTRACT_CHANNEL_FIELDS
 from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
 
@@ -92,20 +93,7 @@ def test_demo_json_has_the_contract_fields(demo_result):
     assert json.loads(text)["status"] == "optimal"
     assert {"solutions", "rejected", "assumptions", "infeasible"} <= set(d)
     ch = d["solutions"][0]["channels"][0]
-    for key in (
-        "channel",
-        "switch",
-        "switch_count",
-        "heatsink",
-        "interface",
-        "diode",
-        "driver",
-        "tj_at_ambient_max",
-        "tj_limit",
-        "sink_temperature",
-        "loss",
-        "notes",
-    ):
+    for key in CONTRACT_CHANNEL_FIELDS:
         assert key in ch
     assert {"conduction", "switching", "total"} <= set(ch["loss"])
     det = ch["details"]
