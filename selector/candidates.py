@@ -952,6 +952,16 @@ def channel_candidates(
     _count(dropped, "interface", bad_if)
     all_rows = set(base["row"].tolist())
     pruned = 0
+    if grouped and len(opts) == 0:  # out of stock or no interface for any row
+        _count(dropped, "no_interface", len(all_rows))
+        return ChannelCandidates(
+            channel.name,
+            candidate_frame([]),
+            dropped,
+            passed.reset_index(drop=True),
+            0,
+            base,
+        )
     if grouped:
         table = opts
         table["mount"] = _obj("group", len(table), table.index)

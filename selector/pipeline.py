@@ -740,18 +740,25 @@ def _q(v: float, unit: str, digits: int = 3) -> str:
 
 def _screen_near_miss(screen) -> NearMiss | None:
     """The rejected row that got furthest through the rules."""
-    rej = screen.rejected
+    rej = screen.rejected_rows
     if rej is None or len(rej) == 0:
         return None
     order = {r: i for i, r in enumerate(_screening.RULES)}
-    r = rej.copy()
-    r["_pos"] = r["rule"].map(order).fillna(-1)
-    r["_n"] = r["rules"].map(len) if "rules" in r else 1
-    r = r.sort_values(
-        ["_pos", "_n", "price"], ascending=[False, True, True], kind="stable"
+    r = pd.DataFrame(
+        {
+            "_pos": rej["rule"].map(order).fillna(-1).to_numpy(),
+            "_n": rej["rules"].map(len).to_numpy() if "rules" in rej else 1,
+            "price": rej["price"].to_numpy(),
+        }
     )
-    best = r.iloc[0]
-    text = f"best is {int(best['count'])} × {best['part']}: {best['reason']}"
+    at = int(
+        r.sort_values(
+            ["_pos", "_n", "price"], ascending=[False, True, True], kind="stable"
+        ).index[0]
+    )
+    best = rej.iloc[at]
+    ((reason, _reasons),) = screen.reasons_at([at])
+    text = f"best is {int(best['count'])} × {best['part']}: {reason}"
     return NearMiss(
         screen.channel,
         text,

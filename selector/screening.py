@@ -152,6 +152,62 @@ class Screened:
     rejected: pd.DataFrame  # part, reason
 
 
+class _SentenceJob:
+    """The reason sentences of one side table's rejected rows, written on demand.
+
+    Writing a sentence with its numbers for every rejected row costs far more than the
+    screening itself on a large inventory, and a pick reads none of them; so the rows
+    keep their fail matrix and the columns the sentences need, and the sentences are
+    written (and kept) when an explanation is read.
+    """
+
+    def __init__(
+        self,
+        t: pd.DataFrame,
+        fails: np.ndarray,
+        channel: Channel,
+        conditions: Conditions,
+        settings: Settings,
+        diode_text: str,
+    ) -> None:
+        self.t = t
+        self.fails = fails
+        self.args = (channel, conditions, settings, diode_text)
+        self._done: dict[int, tuple[str, ...]] = {}
+
+    def reasons(self, rows: Any) -> list[tuple[str, ...]]:
+        """Every failing rule's sentence (funnel order) of each row in ``rows``."""
+        rows = np.asarray(rows, dtype=int)
+        todo = np.array(sorted({int(r) for r in rows} - set(self._done)), dtype=int)
+        if todo.size:
+            rule_ids = list(RULES)
+            sent = np.full((todo.size, len(rule_ids)), "", dtype=object)
+            f = self.fails[todo]
+            for j, rule in enumerate(rule_ids):
+                hit = np.flatnonzero(f[:, j])
+                if hit.size:
+                    sent[hit, j] = _sentences(self.t.iloc[todo[hit]], rule, *self.args)
+            for k, r in enumerate(todo.tolist()):
+                self._done[r] = tuple(x for x in sent[k] if x)
+        return [self._done[int(r)] for r in rows]
+
+
+class _TextJob:
+    """Reasons already written (one tuple per row)."""
+
+    def __init__(self, texts: list[tuple[str, ...]]) -> None:
+        self.texts = texts
+
+    def reasons(self, rows: Any) -> list[tuple[str, ...]]:
+        return [self.texts[int(r)] for r in np.asarray(rows, dtype=int)]
+
+
+_REJECTED_PUBLIC = (
+    "part", "count", "kind", "package", "price", "side", "rule", "reason", "rules",
+    "reasons",
+)  # fmt: skip
+
+
 @dataclass
 class ScreenResult:
     """What :func:`screen_channel` returns for one channel.
@@ -166,30 +222,93 @@ class ScreenResult:
         losses were evaluated at), ``clamp``, ``divider_r2_ohm``, ``needs_diode``,
         ``avalanche_ok``, ``diode_vf_v``, ``notes`` ("; "-joined) and the check columns
         ``<rule>_value``/``<rule>_limit`` of :data:`CHECK_RULES` (see :func:`row_checks`).
-    rejected : one row per failed (part, count): part, count, kind, package, price,
-        side, ``rule`` (first failing rule), ``reason`` (its sentence), ``rules`` and
-        ``reasons`` (every failing rule and sentence, funnel order).
+    rejected_rows : one row per failed (part, count): part, count, kind, package, price,
+        side, ``rule`` (first failing rule) and ``rules`` (every failing rule, funnel
+        order), without the sentences (cheap to build, see :attr:`rejected`).
     funnel : rule id -> rejected rows counted under their first failing rule, every
         rule of :data:`RULES` in order (zeros included).
     total : rows screened (parts × counts).
     diodes : freewheel diodes from the inventory that fit the channel (empty if none
         or not needed); ``diode_rejected`` the others with reasons.
     notes : channel-level sentences (assumptions, cautions, missing diode).
+    jobs : where the sentences of ``rejected_rows`` come from (internal).
+
+    :attr:`rejected` is ``rejected_rows`` plus ``reason`` (the first failing rule's
+    sentence) and ``reasons`` (every sentence); the sentences are written on first use.
     """
 
     channel: str
     passed: pd.DataFrame
-    rejected: pd.DataFrame
+    rejected_rows: pd.DataFrame
     funnel: dict[str, int]
     total: int = 0
     diodes: pd.DataFrame = field(default_factory=pd.DataFrame)
     diode_rejected: pd.DataFrame = field(default_factory=pd.DataFrame)
     notes: list[str] = field(default_factory=list)
+    jobs: list[Any] = field(default_factory=list, repr=False)
+    _rejected: pd.DataFrame | None = field(default=None, repr=False, compare=False)
 
     @property
     def rejected_counts(self) -> dict[str, int]:
         """The funnel without the rules that rejected nothing."""
         return {k: v for k, v in self.funnel.items() if v}
+
+    def reasons_at(self, positions: Any) -> list[tuple[str, tuple[str, ...]]]:
+        """(reason, reasons) of the rejected rows at these positions."""
+        rr = self.rejected_rows
+        pos = np.asarray(positions, dtype=int)
+        if "_refs" not in rr.columns:
+            return [
+                (str(rr["reason"].iloc[i]), tuple(rr["reasons"].iloc[i]))
+                if "reasons" in rr
+                else (str(rr.get("reason", pd.Series([""] * len(rr))).iloc[i]), ())
+                for i in pos
+            ]
+        refs = rr["_refs"].to_numpy()[pos]
+        best = rr["_best"].to_numpy()[pos]
+        want: dict[int, set[int]] = {}
+        for rs in refs:
+            for job, row, _side in rs:
+                want.setdefault(job, set()).add(row)
+        got: dict[tuple[int, int], tuple[str, ...]] = {}
+        for job, rows in want.items():
+            rows_l = sorted(rows)
+            for r, texts in zip(rows_l, self.jobs[job].reasons(rows_l), strict=True):
+                got[(job, r)] = texts
+        out = []
+        for rs, b in zip(refs, best, strict=True):
+            if len(rs) == 1 and not rs[0][2]:
+                texts = got[(rs[0][0], rs[0][1])]
+                out.append((texts[0] if texts else "", texts))
+                continue
+            reasons = tuple(
+                f"on the {side} side: {x}"
+                for job, row, side in rs
+                for x in got[(job, row)]
+            )
+            job, row, side = rs[int(b)]
+            first = got[(job, row)]
+            out.append((f"on the {side} side: {first[0] if first else ''}", reasons))
+        return out
+
+    @property
+    def rejected(self) -> pd.DataFrame:
+        """``rejected_rows`` with ``reason`` and ``reasons`` (written on first use)."""
+        if self._rejected is None:
+            rr = self.rejected_rows
+            if "_refs" not in rr.columns:
+                self._rejected = rr
+            else:
+                texts = self.reasons_at(np.arange(len(rr)))
+                out = rr.drop(columns=["_refs", "_best", "_first"], errors="ignore")
+                out = out.copy()
+                out["reason"] = [a for a, _ in texts]
+                out["reasons"] = [b for _, b in texts]
+                cols = [c for c in _REJECTED_PUBLIC if c in out.columns]
+                self._rejected = out[
+                    cols + [c for c in out.columns if c not in cols]
+                ].reset_index(drop=True)
+        return self._rejected
 
 
 def row_checks(row: Mapping[str, Any]) -> list[dict[str, Any]]:
@@ -383,7 +502,8 @@ def _with_switches(inventory: Any, mask: np.ndarray) -> Any:
     sw = inventory.switches[mask]
     rp = getattr(inventory, "rds_points", None)
     if rp is not None and len(rp):
-        rp = rp[rp["part"].isin(sw["part"])]
+        keep = pd.Index(rp["part"].to_numpy(object)).isin(sw["part"].to_numpy(object))
+        rp = rp[keep]
     if dataclasses.is_dataclass(inventory) and not isinstance(inventory, type):
         return dataclasses.replace(inventory, switches=sw, rds_points=rp)
     inv = copy.copy(inventory)
@@ -506,11 +626,13 @@ def _side_table(
     pos = ev["_order"].to_numpy(dtype=int)
     swr = sw.iloc[pos].reset_index(drop=True)
     pr = plan.iloc[pos].reset_index(drop=True)
-    t = ev.drop(columns=["_order"]).copy()
-    for c in pr.columns:
-        if c not in ("part",):
-            t[c] = pr[c].to_numpy()
+    pr = pr.drop(columns=["part"])
+    t = pd.concat(
+        [ev.drop(columns=["_order", *(c for c in pr.columns if c in ev.columns)]), pr],
+        axis=1,
+    )
     n = len(t)
+    add: dict[str, Any] = {}  # new columns, joined to t once at the end
 
     # ---- electrical checks
     vf = (
@@ -523,35 +645,35 @@ def _side_table(
     cchk = checks.continuous_current_check(swr, i_dev)
     pchk = checks.peak_current_check(swr, channel, i_dev)
     achk = checks.avalanche_check(swr, channel, settings, t["t_lim_c"].to_numpy(float))
-    t["diode_vf_v"] = vf if channel.needs_freewheel else np.nan
-    t["voltage_value"], t["voltage_limit"] = vchk.value, vchk.limit
-    t["gate_drive_level_value"] = t["available_v"]
-    t["gate_drive_level_limit"] = t["gate_min_v"]
-    t["gate_overvoltage_value"] = t["vgs_applied_v"]
-    t["gate_overvoltage_limit"] = t["vgs_limit_v"]
-    t["threshold_cold_value"] = t["vgs_on_v"]
-    t["threshold_cold_limit"] = t["threshold_need_v"]
-    t["current_continuous_value"], t["current_continuous_limit"] = (
+    add["diode_vf_v"] = vf if channel.needs_freewheel else np.nan
+    add["voltage_value"], add["voltage_limit"] = vchk.value, vchk.limit
+    add["gate_drive_level_value"] = t["available_v"].to_numpy()
+    add["gate_drive_level_limit"] = t["gate_min_v"].to_numpy()
+    add["gate_overvoltage_value"] = t["vgs_applied_v"].to_numpy()
+    add["gate_overvoltage_limit"] = t["vgs_limit_v"].to_numpy()
+    add["threshold_cold_value"] = t["vgs_on_v"].to_numpy()
+    add["threshold_cold_limit"] = t["threshold_need_v"].to_numpy()
+    add["current_continuous_value"], add["current_continuous_limit"] = (
         cchk.value,
         cchk.limit,
     )
-    t["current_peak_value"], t["current_peak_limit"] = pchk.value, pchk.limit
-    t["avalanche_value"] = np.where(channel.needs_freewheel, achk.value, np.nan)
-    t["avalanche_limit"] = np.where(channel.needs_freewheel, achk.limit, np.nan)
-    t["avalanche_exact_j"] = achk.extra.get("e_exact_j", np.zeros(n))
-    t["avalanche_ok"] = achk.ok & channel.needs_freewheel
-    t["_av_reason"] = achk.extra["reason"]
-    t["_av_p"] = achk.extra.get("p_avg_w", np.zeros(n))
-    t["_eas_tj0"] = achk.extra.get("eas_tj0_j", np.full(n, np.nan))
-    t["_vbr"] = achk.extra.get("v_br_v", np.full(n, np.nan))
-    t["_i_warn"] = cchk.extra["warn"]
-    t["_pk_from_rating"] = pchk.extra["from_rating"]
-    t["_v_rating"] = _num(swr, "v_rating")
-    t["_i_rating"] = _num(swr, "i_rating")
-    t["_vgs_max"] = _num(swr, "vgs_max")
-    t["_vth_max"] = _num(swr, "vth_max")
+    add["current_peak_value"], add["current_peak_limit"] = pchk.value, pchk.limit
+    add["avalanche_value"] = np.where(channel.needs_freewheel, achk.value, np.nan)
+    add["avalanche_limit"] = np.where(channel.needs_freewheel, achk.limit, np.nan)
+    add["avalanche_exact_j"] = achk.extra.get("e_exact_j", np.zeros(n))
+    add["avalanche_ok"] = achk.ok & channel.needs_freewheel
+    add["_av_reason"] = achk.extra["reason"]
+    add["_av_p"] = achk.extra.get("p_avg_w", np.zeros(n))
+    add["_eas_tj0"] = achk.extra.get("eas_tj0_j", np.full(n, np.nan))
+    add["_vbr"] = achk.extra.get("v_br_v", np.full(n, np.nan))
+    add["_i_warn"] = cchk.extra["warn"]
+    add["_pk_from_rating"] = pchk.extra["from_rating"]
+    add["_v_rating"] = _num(swr, "v_rating")
+    add["_i_rating"] = _num(swr, "i_rating")
+    add["_vgs_max"] = _num(swr, "vgs_max")
+    add["_vth_max"] = _num(swr, "vth_max")
     needs_diode = channel.needs_freewheel & (~achk.ok | (channel.pwm_frequency > 0))
-    t["needs_diode"] = np.asarray(needs_diode, dtype=bool) & channel.needs_freewheel
+    add["needs_diode"] = np.asarray(needs_diode, dtype=bool) & channel.needs_freewheel
 
     # ---- thermal
     best = _best_interface(getattr(inventory, "interfaces", None))
@@ -580,11 +702,11 @@ def _side_table(
         rise_air_pk = rise_air + surge
         surge_ok = (rise_sink_pk <= h) | (rise_air_pk <= h)
     known = np.isfinite(p_dev) & np.isfinite(p1)
-    t["_r_sink"], t["_r_air"], t["_cs"] = r_sink, r_air, cs
-    t["_gain"], t["_h"] = gain, h
-    t["_rise_best"] = np.fmin(rise_sink, rise_air)
-    t["_rise_best_pk"] = np.fmin(rise_sink_pk, rise_air_pk)
-    t["_sink_better"] = rise_sink <= rise_air
+    add["_r_sink"], add["_r_air"], add["_cs"] = r_sink, r_air, cs
+    add["_gain"], add["_h"] = gain, h
+    add["_rise_best"] = np.fmin(rise_sink, rise_air)
+    add["_rise_best_pk"] = np.fmin(rise_sink_pk, rise_air_pk)
+    add["_sink_better"] = rise_sink <= rise_air
 
     # Follow-on failures are not repeated: a kind that cannot sit on this side has no
     # drive to check, and losses at a drive level that failed are not the part's fault.
@@ -601,15 +723,17 @@ def _side_table(
         "threshold_cold": level_ok & ~t["threshold_cold_ok"].to_numpy(bool),
         "current_continuous": ~cchk.ok,
         "current_peak": ~pchk.ok,
-        "avalanche": t["needs_diode"].to_numpy(bool) & (len(diodes_ok.passed) == 0),
+        "avalanche": add["needs_diode"] & (len(diodes_ok.passed) == 0),
         "switching_data": driven & ~loss_ok,
         "thermal_runaway": known & (gain >= 1.0),
         "thermal_no_option": known & (gain < 1.0) & ~steady_ok,
         "surge": known & (gain < 1.0) & steady_ok & ~surge_ok,
     }
     for rule in RULES:
-        t[f"_fail_{rule}"] = fails[rule]
-    return t
+        add[f"_fail_{rule}"] = fails[rule]
+    full = {k: np.broadcast_to(np.asarray(v), (n,)) for k, v in add.items()}
+    t = t.drop(columns=[k for k in full if k in t.columns])
+    return pd.concat([t, pd.DataFrame(full, index=t.index)], axis=1)
 
 
 _SENTENCE_COLUMNS = (
@@ -818,34 +942,76 @@ def _sentences(
 
 
 def _row_notes(t: pd.DataFrame, channel: Channel, settings: Settings) -> list[str]:
+    """The "; "-joined notes of every passed row (rows without any note get "")."""
+    n = len(t)
+
+    def col(name: str, default: Any) -> np.ndarray:
+        return t[name].to_numpy() if name in t else np.full(n, default, dtype=object)
+
+    any_note = (
+        (col("drive_notes", "").astype(bool))
+        | col("_i_warn", False).astype(bool)
+        | (
+            col("_pk_from_rating", False).astype(bool)
+            & (channel.peak > channel.current)
+        )
+        | col("needs_diode", False).astype(bool)
+        | col("avalanche_ok", False).astype(bool)
+        | col("runaway_no_sink", False).astype(bool)
+        | col("loss_notes", "").astype(bool)
+    )
+    notes = np.full(n, "", dtype=object)
+    rows = np.flatnonzero(any_note)
+    if rows.size:
+        notes[rows] = _row_notes_of(t.iloc[rows], channel, settings)
+    return notes.tolist()
+
+
+def _row_notes_of(t: pd.DataFrame, channel: Channel, settings: Settings) -> list[str]:
+    n = len(t)
+
+    def col(name: str, default: Any = None) -> np.ndarray:
+        return t[name].to_numpy() if name in t else np.full(n, default, dtype=object)
+
+    drive_notes, loss_notes = col("drive_notes", ""), col("loss_notes", "")
+    i_warn, i_val, i_rat = (
+        col("_i_warn"),
+        col("current_continuous_value"),
+        col("_i_rating"),
+    )
+    from_rating = col("_pk_from_rating")
+    needs_diode, av_ok = col("needs_diode"), col("avalanche_ok")
+    av_val, av_lim, av_p = col("avalanche_value"), col("avalanche_limit"), col("_av_p")
+    t_lim, runaway = col("t_lim_c"), col("runaway_no_sink", False)
+    peak_note = channel.peak > channel.current
     notes = []
-    for r in t[[c for c in _NOTE_COLUMNS if c in t]].to_dict("records"):
+    for i in range(n):
         items = []
-        if r.get("drive_notes"):
-            items.append(r["drive_notes"])
-        if r["_i_warn"]:
+        if drive_notes[i]:
+            items.append(drive_notes[i])
+        if i_warn[i]:
             items.append(
-                f"runs at {_q(r['current_continuous_value'], 'A')} per device, above "
-                f"{_g(checks.CURRENT_DERATING)} × its {_q(r['_i_rating'], 'A')} rating"
+                f"runs at {_q(i_val[i], 'A')} per device, above "
+                f"{_g(checks.CURRENT_DERATING)} × its {_q(i_rat[i], 'A')} rating"
             )
-        if r["_pk_from_rating"] and channel.peak > channel.current:
+        if from_rating[i] and peak_note:
             items.append(
                 "no pulsed rating (i_pulse): the peak was checked against i_rating"
             )
-        if r["needs_diode"]:
+        if needs_diode[i]:
             items.append("needs a freewheel diode across the load")
-        elif r["avalanche_ok"]:
+        elif av_ok[i]:
             items.append(
-                f"may absorb the coil's {_q(r['avalanche_value'], 'J')} turn-off energy in "
+                f"may absorb the coil's {_q(av_val[i], 'J')} turn-off energy in "
                 f"avalanche (≤ {_g(settings.avalanche_acceptance)} × E_AS at "
-                f"{_q(r['t_lim_c'], '°C')} = {_q(r['avalanche_limit'], 'J')}"
-                + (f"; {_q(r['_av_p'], 'W')} on average" if r["_av_p"] > 0 else "")
+                f"{_q(t_lim[i], '°C')} = {_q(av_lim[i], 'J')}"
+                + (f"; {_q(av_p[i], 'W')} on average" if av_p[i] > 0 else "")
                 + "); a freewheel diode is still the gentler choice"
             )
-        if bool(r.get("runaway_no_sink", False)):
+        if bool(runaway[i]):
             items.append("needs a heatsink: alone in air it runs away thermally")
-        if r.get("loss_notes"):
-            items.append(str(r["loss_notes"]))
+        if loss_notes[i]:
+            items.append(str(loss_notes[i]))
         notes.append("; ".join(items))
     return notes
 
@@ -867,20 +1033,29 @@ def _finish_side(
     conditions: Conditions,
     settings: Settings,
     diode_text: str,
-) -> tuple[pd.DataFrame, pd.DataFrame]:
-    """(passed, rejected) of one side's table."""
+    job_id: int,
+) -> tuple[pd.DataFrame, pd.DataFrame, _SentenceJob]:
+    """(passed, rejected rows, sentence job) of one side's table.
+
+    The rejected rows refer to the job (``_refs`` = ((job_id, row, ""),)); their
+    sentences are written only when read (:attr:`ScreenResult.rejected`).
+    """
     rule_ids = list(RULES)
     F = np.column_stack([t[f"_fail_{r}"].to_numpy(bool) for r in rule_ids])
     bad = F.any(axis=1)
     first = np.where(bad, F.argmax(axis=1), -1)
-    sentences = np.full(F.shape, "", dtype=object)
-    for j, rule in enumerate(rule_ids):
-        rows = np.flatnonzero(F[:, j])
-        if rows.size:
-            sentences[rows, j] = _sentences(
-                t.iloc[rows], rule, channel, conditions, settings, diode_text
-            )
     rej_idx = np.flatnonzero(bad)
+    names = np.array(rule_ids, dtype=object)
+    fr = F[rej_idx]
+    rules_col: list[tuple[str, ...]] = []
+    if len(rej_idx):
+        # every distinct fail pattern once, then one lookup per row
+        code = fr.astype(np.int64) @ (np.int64(1) << np.arange(len(rule_ids)))
+        pats, inv = np.unique(code, return_inverse=True)
+        named = [
+            tuple(names[(int(p) >> np.arange(len(rule_ids))) & 1 == 1]) for p in pats
+        ]
+        rules_col = [named[k] for k in np.asarray(inv).ravel()]
     rejected = pd.DataFrame(
         {
             "part": t["part"].to_numpy()[rej_idx],
@@ -889,18 +1064,25 @@ def _finish_side(
             "package": t["package"].to_numpy()[rej_idx],
             "price": t["price"].to_numpy()[rej_idx],
             "side": t["side"].to_numpy()[rej_idx],
-            "rule": [rule_ids[first[i]] for i in rej_idx],
-            "reason": [sentences[i, first[i]] for i in rej_idx],
-            "rules": [
-                tuple(rule_ids[j] for j in np.flatnonzero(F[i])) for i in rej_idx
-            ],
-            "reasons": [tuple(s for s in sentences[i] if s) for i in rej_idx],
+            "rule": names[first[rej_idx]] if len(rej_idx) else np.array([], object),
+            "rules": rules_col,
             "_first": first[rej_idx],
+            "_refs": [((job_id, k, ""),) for k in range(len(rej_idx))],
+            "_best": np.zeros(len(rej_idx), dtype=int),
         }
+    )
+    cols = [c for c in _SENTENCE_COLUMNS if c in t]
+    job = _SentenceJob(
+        t[cols].iloc[rej_idx].reset_index(drop=True),
+        fr,
+        channel,
+        conditions,
+        settings,
+        diode_text,
     )
     passed = t[~bad].copy()
     passed["notes"] = _row_notes(passed, channel, settings)
-    return passed, rejected
+    return passed, rejected, job
 
 
 def _clean(passed: pd.DataFrame) -> pd.DataFrame:
@@ -972,7 +1154,9 @@ def screen_channel(
         return ScreenResult(
             channel.name,
             pd.DataFrame(),
-            pd.DataFrame(columns=["part", "count", "side", "rule", "reason"]),
+            pd.DataFrame(
+                columns=["part", "count", "side", "rule", "reason", "reasons"]
+            ),
             {r: 0 for r in RULES},
             0,
             dio.passed,
@@ -980,6 +1164,7 @@ def screen_channel(
             notes + ["the inventory has no switches"],
         )
     results = []
+    jobs: list[Any] = []
     for side in sides:
         t = _side_table(
             inventory,
@@ -992,7 +1177,11 @@ def screen_channel(
             gate_clamp,
             dio,
         )
-        results.append(_finish_side(t, channel, conditions, settings, dtext))
+        passed, rej, job = _finish_side(
+            t, channel, conditions, settings, dtext, len(jobs)
+        )
+        jobs.append(job)
+        results.append((passed, rej))
     if len(results) == 1:
         passed, rejected = results[0]
     else:
@@ -1001,23 +1190,27 @@ def screen_channel(
     funnel = {r: 0 for r in RULES}
     for r, c in rejected["rule"].value_counts().items():
         funnel[str(r)] = int(c)
-    rejected = rejected.drop(columns=["_first"]).reset_index(drop=True)
     return ScreenResult(
         channel.name,
         _clean(passed),
-        rejected,
+        rejected.reset_index(drop=True),
         funnel,
         total,
         dio.passed,
         dio.rejected,
         notes,
+        jobs,
     )
 
 
 def _merge_sides(
     results: list[tuple[pd.DataFrame, pd.DataFrame]],
 ) -> tuple[pd.DataFrame, pd.DataFrame]:
-    """Side "any": pass on either side (prefer no driver IC, then low); else fail both."""
+    """Side "any": pass on either side (prefer no driver IC, then low); else fail both.
+
+    A (part, count) failing on both sides keeps, as its first rule, the one of the side
+    where it got furthest; its reasons name the side they belong to.
+    """
     passed = pd.concat([p for p, _ in results], ignore_index=True)
     if len(passed):
         passed["_pref"] = passed["uses_driver"].astype(int) * 2 + (
@@ -1034,22 +1227,30 @@ def _merge_sides(
     rej = pd.concat([r for _, r in results], ignore_index=True)
     if len(rej) == 0:
         return passed, rej
-    keys = list(zip(rej["part"], rej["count"], strict=True))
-    rej = rej[[k not in ok_keys for k in keys]].copy()
-    rej["reasons"] = [
-        tuple(f"on the {s} side: {x}" for x in rs)
-        for s, rs in zip(rej["side"], rej["reasons"], strict=True)
+    parts = rej["part"].tolist()
+    counts = rej["count"].tolist()
+    firsts = rej["_first"].tolist()
+    sides = rej["side"].tolist()
+    refs = rej["_refs"].tolist()
+    groups: dict[tuple[Any, Any], list[int]] = {}
+    for i, key in enumerate(zip(parts, counts, strict=True)):
+        if key not in ok_keys:
+            groups.setdefault(key, []).append(i)
+    keep, new_refs, best = [], [], []
+    for idx in groups.values():
+        b = max(range(len(idx)), key=lambda k: (firsts[idx[k]], -k))
+        keep.append(idx[b])
+        new_refs.append(tuple((refs[i][0][0], refs[i][0][1], sides[i]) for i in idx))
+        best.append(b)
+    out = rej.iloc[keep].copy()
+    out["_refs"] = new_refs
+    out["_best"] = best
+    rules = rej["rules"].tolist()
+    out["rules"] = [
+        tuple(dict.fromkeys(x for i in idx for x in rules[i]))
+        for idx in groups.values()
     ]
-    merged = []
-    for (_part, _count), g in rej.groupby(["part", "count"], sort=False):
-        best = g.loc[g["_first"].idxmax()].copy()
-        best["reason"] = f"on the {best['side']} side: {best['reason']}"
-        best["reasons"] = tuple(x for rs in g["reasons"] for x in rs)
-        best["rules"] = tuple(dict.fromkeys(x for rs in g["rules"] for x in rs))
-        merged.append(best)
-    if not merged:
-        return passed, rej.iloc[0:0]
-    return passed, pd.DataFrame(merged).reset_index(drop=True)
+    return passed, out.reset_index(drop=True)
 
 
 def _channel_notes(channel: Channel, settings: Settings, dio: Screened) -> list[str]:

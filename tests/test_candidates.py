@@ -569,3 +569,25 @@ def test_local_front_matches_a_plain_loop_per_key(data):
         earlier = order[: order.index(i)]
         dominated = any(np.all(v[j] <= v[i]) for j in earlier)
         assert got[i] == (not dominated)
+
+
+def test_grouped_channel_with_every_part_out_of_stock_has_no_candidate():
+    """A grouped channel whose screened parts all have stock 0 yields no candidate (and
+    says so under "stock") instead of failing inside the group stage."""
+    rng = np.random.default_rng(3)
+    inv = fake_inventory(rng)
+    design = Design(
+        Conditions(ambient_max=45.0, max_parallel=2),
+        (
+            Channel("g1", 24.0, 5.0, heatsink_group="G"),
+            Channel("g2", 24.0, 3.0, heatsink_group="G"),
+        ),
+    )
+    screens = fake_screens(rng, inv, design)
+    p = screens["g2"].passed.copy()
+    p["stock"] = 0.0
+    screens["g2"] = ScreenResult("g2", p, pd.DataFrame(), {}, len(p))
+    cset = cm.build_selection(inv, design, screens)
+    assert len(cset.channels["g2"].table) == 0
+    assert cset.channels["g2"].dropped["stock"] == len(p)
+    assert (cset.problem.candidates["channel"] == "g2").sum() == 0

@@ -423,3 +423,39 @@ def test_driver_candidates_for_a_drive_need_and_for_a_screened_row():
     assert why["LS"].startswith("kind low_side")
     row = {"driver_kind": "low_side", "driver_v_min": 10.0, "driver_v_max": 14.0}
     assert list(driver_candidates(drivers, row, ch).passed["part"]) == ["LS"]
+
+
+def test_reason_sentences_are_written_only_when_read_and_match_the_table():
+    """A pick reads no sentence, so none is written during screening; reading one row's
+    reasons gives exactly that row of the full table, and the table is built once."""
+    inv = inventory(
+        [switch("LOWV", v_rating=20.0), switch("WEAK", i_rating=2.0), switch("OK")],
+        [("LOWV", 10.0, 0.01), ("WEAK", 10.0, 0.01), ("OK", 10.0, 0.01)],
+        interfaces=[GREASE],
+    )
+    ch = Channel("heater", 24.0, 6.0, drive=12.0)
+    res = screen_channel(inv, ch, COND, S, counts=[1, 2])
+    assert all(not job._done for job in res.jobs)  # nothing written yet
+    assert set(res.rejected_rows["part"]) == {"LOWV", "WEAK"}
+    assert "reason" not in res.rejected_rows.columns
+    last = len(res.rejected_rows) - 1
+    ((reason, reasons),) = res.reasons_at([last])
+    table = res.rejected
+    assert table["reason"].iloc[last] == reason
+    assert tuple(table["reasons"].iloc[last]) == reasons
+    assert res.rejected is table  # written once, kept
+    low = table.set_index(["part", "count"]).loc[("LOWV", 1)]
+    assert low["rule"] == "voltage" and "20 V rating" in low["reason"]
+
+
+def test_side_any_first_rule_comes_from_the_side_that_got_furthest():
+    """A part failing on both sides is counted under the later rule (the side where it
+    got furthest through the funnel), and that reason names its side."""
+    inv = inventory([switch("STD")], [("STD", 10.0, 0.01)])
+    ch = Channel("fan", 24.0, 2.0, side="any", drive=3.3)
+    res = screen_channel(inv, ch, COND, S, counts=[1])
+    row = res.rejected.iloc[0]
+    side = row["reason"].split(" side:")[0].removeprefix("on the ")
+    assert side in ("low", "high")
+    assert sum(res.funnel.values()) == 1 and res.funnel[row["rule"]] == 1
+    assert set(row["rules"]) >= {row["rule"]}
