@@ -6,6 +6,7 @@ unit conversion for display happens at this edge only.
 
 from __future__ import annotations
 
+import functools
 import hashlib
 
 import altair as alt
@@ -57,6 +58,12 @@ def read_inventory(files: tuple[tuple[str, bytes], ...]):
     return load_inventory(list(files))
 
 
+@st.cache_resource(show_spinner=False, max_entries=8)
+def screenings_of(inventory_key: str) -> dict:
+    """Per-channel screenings kept for one inventory (see selector.pipeline.screen_all)."""
+    return {}
+
+
 @st.cache_data(show_spinner=False, max_entries=16)
 def run_selection(_inventory, inventory_key: str, design_toml: str, top: int):
     """Select parts for the design; cached on the inventory content and design text."""
@@ -64,7 +71,9 @@ def run_selection(_inventory, inventory_key: str, design_toml: str, top: int):
     from selector.pipeline import select
 
     design = load_design(design_toml)
-    return select(_inventory, design, top=top)
+    return select(
+        _inventory, design, top=top, screen_cache=screenings_of(inventory_key)
+    )
 
 
 @st.cache_data(show_spinner=False, max_entries=16)
@@ -584,19 +593,16 @@ with export_tab:
             ),
             0,
         )
-        try:
-            data = workbook_for(result, inventory, inventory_key, design_toml, index)
-            st.download_button(
-                "Download the bill of materials and calculations (Excel)",
-                data,
-                file_name="selection.xlsx",
-                mime=(
-                    "application/vnd.openxmlformats-officedocument.spreadsheetml.sheet"
-                ),
-                key="dl_workbook",
-            )
-        except SelectorError as exc:
-            st.error(str(exc))
+        # built when the button is pressed (in its own thread), not on every re-run
+        st.download_button(
+            "Download the bill of materials and calculations (Excel)",
+            functools.partial(
+                workbook_for, result, inventory, inventory_key, design_toml, index
+            ),
+            file_name="selection.xlsx",
+            mime=("application/vnd.openxmlformats-officedocument.spreadsheetml.sheet"),
+            key="dl_workbook",
+        )
     else:
         st.caption("The workbook is available once a selection exists.")
     if design_toml:

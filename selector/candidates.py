@@ -167,30 +167,37 @@ def candidate_frame(rows: list[dict] | pd.DataFrame) -> pd.DataFrame:
     Missing columns get their default ("" / 1 / False / NaN); ``p_total_w`` defaults to
     ``count·p_dev_w``. The index is reset to 0..N-1 (the optimizer's candidate ids).
     """
-    df = (
-        pd.DataFrame(rows).copy() if not isinstance(rows, pd.DataFrame) else rows.copy()
-    )
+    df = pd.DataFrame(rows) if not isinstance(rows, pd.DataFrame) else rows
+    n = len(df)
+    cols: dict[str, Any] = {}  # every column built as an array, the frame made once
     for col, kind in CANDIDATE_COLUMNS.items():
         if col not in df.columns:
             if col == "p_total_w" and "p_dev_w" in df.columns and "count" in df.columns:
-                df[col] = df["count"].astype(float) * df["p_dev_w"].astype(float)
+                v = _num(df, "count") * _num(df, "p_dev_w")
             else:
-                df[col] = _DEFAULTS[kind]
-    for col, kind in CANDIDATE_COLUMNS.items():
-        if kind == "str":
-            col_s = df[col]
-            if col_s.dtype != object:
-                col_s = pd.Series(
-                    col_s.to_numpy(dtype=object), index=df.index, dtype=object
-                )
-            df[col] = col_s.where(col_s.notna(), "")
-        elif kind == "int":
-            df[col] = df[col].astype(int)
-        elif kind == "bool":
-            df[col] = df[col].fillna(False).astype(bool)
+                v = np.full(n, _DEFAULTS[kind], dtype=object if kind == "str" else None)
         else:
-            df[col] = df[col].astype(float)
-    return df.reset_index(drop=True)
+            v = df[col].to_numpy()
+        if kind == "str":
+            v = np.asarray(v, dtype=object).copy()
+            v[pd.isna(v)] = ""
+        elif kind == "int":
+            v = np.asarray(v).astype(int)
+        elif kind == "bool":
+            v = np.asarray(v, dtype=object)
+            v = np.where(pd.isna(v), False, v).astype(bool)
+        else:
+            v = np.asarray(v, dtype=float)
+        cols[col] = v
+    extra = [c for c in df.columns if c not in CANDIDATE_COLUMNS]
+    order = list(df.columns) + [c for c in CANDIDATE_COLUMNS if c not in df.columns]
+    for c in extra:
+        cols[c] = df[c].to_numpy()
+    out = pd.DataFrame({c: cols[c] for c in order})
+    for col, kind in CANDIDATE_COLUMNS.items():
+        if kind == "str":  # keep object dtype (arrow strings make row selection slow)
+            out[col] = pd.Series(cols[col], dtype=object)
+    return out
 
 
 # ======================================================================================
@@ -335,8 +342,11 @@ def _text(df: pd.DataFrame, col: str) -> np.ndarray:
     """A text column as an object array, blanks as ""."""
     if col not in df.columns:
         return np.full(len(df), "", dtype=object)
-    s = df[col]
-    return s.where(s.notna(), "").astype(str).astype(object).to_numpy(dtype=object)
+    v = df[col].to_numpy(dtype=object)
+    blank = pd.isna(v)
+    return np.array(
+        ["" if b else str(x) for x, b in zip(v, blank, strict=True)], object
+    )
 
 
 def _obj(values, n: int | None = None, index=None) -> pd.Series:

@@ -29,6 +29,7 @@ import copy
 import dataclasses
 import math
 import time
+from collections.abc import MutableMapping
 from typing import Any
 
 import numpy as np
@@ -56,6 +57,7 @@ HOT_SINK_C = (
     60.0  # [°C] above this a sink gets the hot-surface caution (common practice)
 )
 SINK_HELD_J_PER_K = 1e12  # [J/K] stands for "sink does not move during a surge"
+SCREEN_CACHE_ENTRIES = 256  # channel screenings a caller's cache keeps at most
 TIME_LIMIT_DIAGNOSIS = 5.0  # [s] per sub-problem when looking for the infeasible part
 
 __all__ = ["evaluate_solution", "format_result", "screen_all", "select", "why"]
@@ -65,13 +67,31 @@ __all__ = ["evaluate_solution", "format_result", "screen_all", "select", "why"]
 # the chain
 
 
-def screen_all(inventory, design: Design, settings: Settings | None = None) -> dict:
-    """Channel name -> :class:`selector.screening.ScreenResult` for every channel."""
+def screen_all(
+    inventory,
+    design: Design,
+    settings: Settings | None = None,
+    cache: MutableMapping | None = None,
+) -> dict:
+    """Channel name -> :class:`selector.screening.ScreenResult` for every channel.
+
+    ``cache`` (optional, owned by the caller and tied to this one inventory) keeps each
+    channel's screening under (channel, conditions, settings), all frozen dataclasses:
+    after an edit of one channel only that channel is screened again.
+    """
     settings = settings or Settings()
-    return {
-        c.name: _screening.screen_channel(inventory, c, design.conditions, settings)
-        for c in design.channels
-    }
+    out = {}
+    for c in design.channels:
+        key = (c, design.conditions, settings)
+        sc = cache.get(key) if cache is not None else None
+        if sc is None:
+            sc = _screening.screen_channel(inventory, c, design.conditions, settings)
+            if cache is not None:
+                if len(cache) >= SCREEN_CACHE_ENTRIES:
+                    cache.pop(next(iter(cache)))  # oldest first
+                cache[key] = sc
+        out[c.name] = sc
+    return out
 
 
 def _funnel(screen, cands: _cand.ChannelCandidates | None) -> dict[str, int]:
@@ -94,6 +114,7 @@ def select(
     solver: str = "cbc",
     time_limit: float = 30.0,
     prune: _cand.PruneSettings | None = None,
+    screen_cache: MutableMapping | None = None,
 ) -> SelectionResult:
     """The cheapest safe selection for the whole design, with ranked alternatives.
 
@@ -108,6 +129,8 @@ def select(
     time_limit : [s] budget of the integer program; an answer found when it runs out is
         marked not proven optimal.
     prune : how many alternatives the candidate stage keeps.
+    screen_cache : a dict the caller keeps for this inventory (see :func:`screen_all`);
+        the page passes one so that a re-run after one edit screens only what changed.
 
     Returns
     -------
@@ -125,7 +148,7 @@ def select(
     """
     settings = settings or Settings()
     t0 = time.perf_counter()
-    screens = screen_all(inventory, design, settings)
+    screens = screen_all(inventory, design, settings, screen_cache)
     cset = _cand.build_selection(inventory, design, screens, settings, prune)
     rejected = {
         c.name: _funnel(screens.get(c.name), cset.channels.get(c.name))
@@ -191,14 +214,19 @@ def _f(x: Any, default: float = math.nan) -> float:
     return v
 
 
+_SINK_LAW_COLUMNS = ("r_ref", "rise_ref", "n", "r_nat_ref", "rise_nat_ref", "n_nat")
+
+
 def _sink_law(sink_table: pd.DataFrame, part: str):
     """(one-row table, rise function P -> ΔT) of a heatsink of the operating table."""
     one = sink_table[sink_table["part"].astype(str) == str(part)].iloc[[0]]
+    # the law's parameters once, as arrays: the rise is asked for many times
+    law = {c: one[c].to_numpy(float) for c in _SINK_LAW_COLUMNS if c in one.columns}
 
     def rise(p: float) -> float:
         return float(
             np.asarray(
-                _heatsinks.sink_rise(one, np.asarray(float(p)), outer=False)
+                _heatsinks.sink_rise(law, np.asarray(float(p)), outer=False)
             ).reshape(-1)[0]
         )
 

@@ -486,3 +486,36 @@ def test_each_copy_has_its_own_sink_in_the_final_evaluation():
         assert ts == pytest.approx(45.0 + rise, abs=1e-3)
         checked += 1
     assert checked >= 1
+
+
+def test_screen_cache_rescreens_only_the_edited_channel(demo, demo_result, monkeypatch):
+    """With a cache kept for the inventory, the answer is the same as without it, and
+    after one channel's current changes only that channel is screened again."""
+    inv, design = demo
+    cache: dict = {}
+    first = pipeline.select(inv, design, top=3, screen_cache=cache)
+    assert [s.total_cost for s in first.solutions] == [
+        s.total_cost for s in demo_result.solutions
+    ]
+    assert len(cache) == len(design.channels)
+
+    screened: list[str] = []
+    real = pipeline._screening.screen_channel
+
+    def counting(inventory, channel, *args, **kwargs):
+        screened.append(channel.name)
+        return real(inventory, channel, *args, **kwargs)
+
+    monkeypatch.setattr(pipeline._screening, "screen_channel", counting)
+    c0 = design.channels[0]
+    edited = dataclasses.replace(
+        design,
+        channels=(dataclasses.replace(c0, current=c0.current * 0.9),)
+        + tuple(design.channels[1:]),
+    )
+    again = pipeline.select(inv, edited, top=3, screen_cache=cache)
+    assert screened == [c0.name]
+    fresh = pipeline.select(inv, edited, top=3)
+    assert [s.total_cost for s in again.solutions] == [
+        s.total_cost for s in fresh.solutions
+    ]
