@@ -113,7 +113,10 @@ def _arr(x) -> np.ndarray:
 def _col(df: pd.DataFrame, name: str) -> np.ndarray:
     if name not in df:
         return np.full(len(df), np.nan)
-    return pd.to_numeric(df[name], errors="coerce").to_numpy(dtype=float)
+    s = df[name]
+    if s.dtype == np.float64:  # numeric already: no coercion pass
+        return s.to_numpy()
+    return pd.to_numeric(s, errors="coerce").to_numpy(dtype=float)
 
 
 # --------------------------------------------------------------------------- physics
@@ -338,7 +341,7 @@ def avalanche_check(
     eas = _col(switches, "eas")
     e_tj0 = eas_at(eas, _col(switches, "tj_max"), tj0)
     limit = settings.avalanche_acceptance * e_tj0
-    kind = switches["kind"].astype(object).to_numpy()
+    kind = switches["kind"].to_numpy(dtype=object)
     reason = np.full(n, "", dtype=object)
     energy_ok = np.nan_to_num(limit, nan=-np.inf) >= e
     reason[~energy_ok] = "energy"

@@ -62,7 +62,7 @@ from dataclasses import dataclass, field
 import numpy as np
 import pandas as pd
 
-from selector.losses import rds_at_drive
+from selector.losses import _RdsLookup, rds_at_drive
 from selector.models import Channel, Settings
 
 __all__ = [
@@ -209,7 +209,48 @@ def spec_point_at(
     return np.asarray(r, dtype=float), np.asarray(used, dtype=float)
 
 
-def _lowest_point(rds_points: pd.DataFrame, parts) -> np.ndarray:
+def _lowest_point(
+    rds_points: pd.DataFrame, parts, look: _RdsLookup | None = None
+) -> np.ndarray:
+    """Lowest |V_GS| of the guaranteed points of each part [V] (NaN where none).
+
+    The points are grouped by part id once (factorised), the smallest |V_GS| of each
+    group taken with one sort, and the queried ids looked up in the group index.
+    ``look``: the look-up of the same points and parts, whose :meth:`lowest` is the
+    same answer when the ids are plain text and no Rds(on) is infinite (it drops
+    infinite ones, this function keeps them).
+    """
+    parts = np.asarray(parts, dtype=object).reshape(-1)
+    out = np.full(parts.size, np.nan)
+    if rds_points is None or len(rds_points) == 0 or parts.size == 0:
+        return out
+    vgs = rds_points["vgs"]
+    rds = rds_points["rds_on"]
+    if vgs.dtype != np.float64 or rds.dtype != np.float64:
+        return _lowest_point_frame(rds_points, parts)
+    vgs = vgs.to_numpy()
+    rds = rds.to_numpy()
+    if look is not None and look.text and not np.isinf(rds).any():
+        return look.lowest()
+    keep = ~np.isnan(vgs) & ~np.isnan(rds)
+    code, names = pd.factorize(rds_points["part"].to_numpy(dtype=object)[keep])
+    has = code >= 0  # blank part ids form no group
+    if not has.any():
+        return out
+    code, v = code[has], np.abs(vgs[keep][has])
+    order = np.lexsort((v, code))  # by part, then |V_GS|
+    code, v = code[order], v[order]
+    first = np.flatnonzero(np.concatenate(([True], code[1:] != code[:-1])))
+    low = np.full(len(names), np.nan)
+    low[code[first]] = v[first]
+    at = pd.Index(names, dtype=object).get_indexer(parts)
+    hit = at >= 0
+    out[hit] = low[at[hit]]
+    return out
+
+
+def _lowest_point_frame(rds_points: pd.DataFrame, parts) -> np.ndarray:
+    """:func:`_lowest_point` with pandas grouping (columns of any dtype)."""
     rp = guaranteed_points(rds_points)
     low = (
         rp["vgs"].abs().groupby(rp["part"]).min() if len(rp) else pd.Series(dtype=float)
@@ -441,6 +482,33 @@ def _usable_drivers(drivers: pd.DataFrame | None, channel: Channel) -> pd.DataFr
     return d[ok]
 
 
+def _float_col(df: pd.DataFrame, name: str) -> np.ndarray:
+    """A column as float64 (text coerced to NaN); all NaN when the column is absent."""
+    if name not in df:
+        return np.full(len(df), np.nan)
+    return pd.to_numeric(df[name], errors="coerce").to_numpy(dtype=float)
+
+
+def _usable_driver_arrays(
+    drivers: pd.DataFrame | None, channel: Channel
+) -> tuple[np.ndarray, np.ndarray]:
+    """(v_out [V], kind) of :func:`_usable_drivers`, read as arrays (no table copy)."""
+    if drivers is None or len(drivers) == 0:
+        return np.empty(0), np.empty(0, dtype=object)
+
+    def num(name: str) -> np.ndarray:
+        return _float_col(drivers, name)
+
+    stock = num("stock")
+    vmax = num("v_supply_max")
+    kind = drivers["kind"].to_numpy(dtype=object)
+    v_out = drivers["v_out"]
+    with np.errstate(invalid="ignore"):
+        ok = v_out.notna().to_numpy(dtype=bool) & (np.isnan(stock) | (stock > 0))
+        ok &= (kind != "high_side") | np.isnan(vmax) | (vmax >= channel.supply)
+    return v_out[ok].to_numpy(dtype=float), kind[ok]
+
+
 def drive_table(
     switches: pd.DataFrame,
     rds_points: pd.DataFrame,
@@ -493,24 +561,23 @@ def drive_table(
     settings = settings or Settings()
     n = len(switches)
     idx = switches.index
-    kind = switches["kind"].astype(object).to_numpy()
-    parts = switches["part"].astype(object).to_numpy()
+    kind = switches["kind"].to_numpy(dtype=object)
+    parts = switches["part"].to_numpy(dtype=object)
 
     def col(name: str) -> np.ndarray:
-        if name not in switches:
-            return np.full(n, np.nan)
-        return pd.to_numeric(switches[name], errors="coerce").to_numpy(dtype=float)
+        return _float_col(switches, name)
 
     vgs_max = col("vgs_max")
     vth_max = col("vth_max")
     vce_vge = col("vce_sat_vge")
+    look = _RdsLookup(rds_points, parts)  # spec points of these parts, indexed once
     is_igbt = kind == "igbt"
     is_pmos = kind == "pmos"
     is_nmos = kind == "nmos"
     gate_min = np.where(
         is_igbt,
         np.where(np.isnan(vce_vge), 15.0, vce_vge),
-        _lowest_point(rds_points, parts),
+        _lowest_point(rds_points, parts, look),
     )
     limit = gate_limit(kind, vgs_max, settings)
     drive = float(channel.drive)
@@ -556,18 +623,17 @@ def drive_table(
     uses_driver = driver_kind != ""
 
     # ---- drivers: fit = kind allowed & v_out within [gate_min, limit]
-    d = _usable_drivers(drivers, channel)
+    v_out, dkind = _usable_driver_arrays(drivers, channel)
     available = np.where(uses_driver, np.nan, vgs_on)
     drv_min = np.full(n, np.nan)
     drive_case = np.full(n, "", dtype=object)
     too_high_v = np.full(n, np.nan)
     if uses_driver.any():
-        v_out = d["v_out"].to_numpy(dtype=float)
-        dkind = d["kind"].astype(object).to_numpy()
-        allowed = np.zeros((n, len(d)), dtype=bool)
+        allowed = np.zeros((n, len(v_out)), dtype=bool)
+        dk_code, dk_names = pd.factorize(driver_kind)  # a few distinct "a|b" texts
         for k in ("low_side", "high_side", "isolated"):
-            rows = np.array([k in dk.split("|") for dk in driver_kind], dtype=bool)
-            allowed |= rows[:, None] & (dkind == k)[None, :]
+            has_k = np.array([k in dk.split("|") for dk in dk_names], dtype=bool)
+            allowed |= has_k[dk_code][:, None] & (dkind == k)[None, :]
         reach = allowed & (v_out[None, :] >= np.nan_to_num(gate_min, nan=0.0)[:, None])
         lim = np.where(np.isnan(limit), np.inf, limit)
         fits = reach & (v_out[None, :] <= lim[:, None])
@@ -592,7 +658,8 @@ def drive_table(
     drv_max = np.where(uses_driver, limit, np.nan)
 
     # ---- checks
-    vgs_point = spec_point_at(rds_points, parts, vgs_on)[1]
+    # spec_point_at(rds_points, parts, vgs_on), on the look-up built once above
+    vgs_point = look.at_drive(np.nan_to_num(vgs_on, nan=0.0))[1]
     vgs_point = np.where(is_igbt, np.nan, vgs_point)
     level_val = np.where(uses_driver & np.isnan(vgs_on), available, vgs_on)
     # a driver that reaches the level but exceeds the gate limit is a gate over-voltage,
@@ -615,7 +682,8 @@ def drive_table(
     need_th = THRESHOLD_FACTOR * vth_cold
     th_ok = np.isnan(need_th) | np.isnan(vgs_on) | (vgs_on >= need_th - 1e-12)
 
-    out = pd.DataFrame(
+    notes = _notes(kind, gate_min, vgs_max, side, channel, settings, clamp)
+    return pd.DataFrame(
         {
             "side": side,
             "topology": topology,
@@ -639,11 +707,10 @@ def drive_table(
             "gate_overvoltage_ok": ov_ok,
             "threshold_cold_ok": th_ok,
             "drive_case": drive_case,
+            "drive_notes": notes,
         },
         index=idx,
     )
-    out["drive_notes"] = _notes(kind, gate_min, vgs_max, side, channel, settings, clamp)
-    return out
 
 
 def _notes(
@@ -660,9 +727,23 @@ def _notes(
     def key(x: float) -> float | None:
         return None if np.isnan(x) else round(float(x), 9)
 
+    kind = np.asarray(kind, dtype=object)
+    gate_min = np.asarray(gate_min, dtype=float)
+    vgs_max = np.asarray(vgs_max, dtype=float)
+    # distinct (kind, gate_min, vgs_max) rows, in order of first appearance; the
+    # notes are built once per distinct rounded key, from its first row's values
+    codes = np.zeros(len(kind), dtype=np.int64)
+    for a in (kind, gate_min, vgs_max):
+        c, u = pd.factorize(a, use_na_sentinel=False)
+        codes = codes * max(len(u), 1) + c
+    combo, first = np.unique(codes, return_index=True)
+    order = np.argsort(first, kind="stable")
+    inverse = np.searchsorted(combo, codes)
     cache: dict[tuple, str] = {}
-    out = np.empty(len(kind), dtype=object)
-    for i, (k, g, vm) in enumerate(zip(kind, gate_min, vgs_max, strict=True)):
+    text = np.empty(len(combo), dtype=object)
+    for j in order:
+        i = first[j]
+        k, g, vm = kind[i], gate_min[i], vgs_max[i]
         kk = (k, key(g), key(vm))
         if kk not in cache:
             if k not in ("nmos", "pmos", "igbt"):
@@ -672,5 +753,5 @@ def _notes(
                     k, side, channel, settings, gate_min=g, vgs_max=vm, clamp=clamp
                 )
                 cache[kk] = "; ".join(need.notes)
-        out[i] = cache[kk]
-    return out
+        text[j] = cache[kk]
+    return text[inverse]

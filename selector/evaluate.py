@@ -85,7 +85,10 @@ def _col(df: pd.DataFrame, name: str, default: Any = np.nan) -> np.ndarray:
 
 def _num(df: pd.DataFrame, name: str) -> np.ndarray:
     if name in df.columns:
-        return pd.to_numeric(df[name], errors="coerce").to_numpy(dtype=float)
+        s = df[name]
+        if s.dtype == np.float64:  # numeric already: no coercion pass
+            return s.to_numpy()
+        return pd.to_numeric(s, errors="coerce").to_numpy(dtype=float)
     return np.full(len(df), np.nan)
 
 
@@ -327,11 +330,37 @@ def evaluate_switches(
     return _frame(out, EVALUATION_COLUMNS)
 
 
+try:  # pandas ≥ 3.0: a frame straight from its blocks (one per dtype)
+    from pandas.api.internals import create_dataframe_from_blocks as _from_blocks
+except ImportError:  # pragma: no cover - older pandas
+    _from_blocks = None
+
+
 def _frame(columns: dict[str, np.ndarray], order: tuple[str, ...]) -> pd.DataFrame:
-    """DataFrame with text columns kept as ``object`` (no per-cell string inference)."""
+    """DataFrame with text columns kept as ``object`` (no per-cell string inference).
+
+    The columns are stacked into one 2-D block per dtype and the frame is made from
+    those blocks: the same frame as ``pd.DataFrame`` of the columns, without its
+    per-column checks (a fixed cost that dominates small tables).
+    """
+    arrays = [np.asarray(columns[name]) for name in order]
+    if _from_blocks is not None and arrays and arrays[0].ndim == 1:
+        n = len(arrays[0])
+        groups: dict[np.dtype, list[int]] = {}
+        for i, a in enumerate(arrays):
+            if a.ndim != 1 or len(a) != n or a.dtype.kind not in "biufO":
+                break
+            groups.setdefault(a.dtype, []).append(i)
+        else:
+            blocks = []
+            for dtype, where in groups.items():
+                block = np.empty((len(where), n), dtype=dtype)
+                for j, i in enumerate(where):
+                    block[j] = arrays[i]
+                blocks.append((block, np.asarray(where, dtype=np.intp)))
+            return _from_blocks(blocks, index=pd.RangeIndex(n), columns=pd.Index(order))
     data = {}
-    for name in order:
-        a = np.asarray(columns[name])
+    for name, a in zip(order, arrays, strict=True):
         data[name] = pd.Series(a, dtype=object, copy=False) if a.dtype == object else a
     return pd.DataFrame(data, columns=list(order), copy=False)
 

@@ -304,6 +304,39 @@ def _col(df: pd.DataFrame, name: str) -> np.ndarray:
     )
 
 
+def _float_columns(df: pd.DataFrame, names) -> dict[str, np.ndarray]:
+    """Float columns of ``df`` by name, the same values as :func:`_col` for each name.
+
+    A ``float64`` column is taken as it is (no numeric coercion pass); other columns go
+    through :func:`_col` (coercion, NaN for blank); absent ones are all NaN.
+    """
+    out: dict[str, np.ndarray] = {}
+    cols = df.columns
+    unique = cols.is_unique
+    for name in names:
+        if name in out:
+            continue
+        if unique and name in cols:
+            s = df[name]
+            if s.dtype == np.float64:
+                out[name] = s.to_numpy()
+                continue
+        out[name] = _col(df, name)
+    return out
+
+
+def _text_array(values) -> np.ndarray | None:
+    """``values`` as an object array when every element is a ``str`` or blank (NaN,
+    None): then ``astype(str)`` would keep them as they are. Otherwise None."""
+    if isinstance(values, (pd.Series, pd.Index)):
+        a = values.to_numpy(dtype=object)
+    else:
+        a = np.asarray(values, dtype=object).reshape(-1)
+    if a.size and pd.api.types.infer_dtype(a, skipna=True) != "string":
+        return None
+    return a
+
+
 def _round_sig(x, digits: int = 3) -> np.ndarray:
     """Round to ``digits`` significant digits (what the messages print)."""
     x = _f(x)
@@ -449,23 +482,40 @@ class _RdsLookup:
     def __init__(self, rds_points: pd.DataFrame | None, parts):
         if isinstance(parts, pd.Series) and isinstance(parts.dtype, pd.StringDtype):
             query = parts.reset_index(drop=True)  # text already: no conversion
+        elif isinstance(parts, np.ndarray) and parts.dtype == object:
+            query = parts.reshape(-1)  # a Series only if the slow path needs one
         else:
-            query = pd.Series(np.asarray(parts, dtype=object).reshape(-1))
+            query = np.asarray(parts, dtype=object).reshape(-1)
         self.n = len(query)
         self.keys = np.empty(0, dtype=np.int64)
+        #: part ids matched as plain text (every id a str or blank)
+        self.text = True
         if self.n == 0 or rds_points is None or len(rds_points) == 0:
             self.query = np.full(self.n, -1, dtype=np.int64)
             return
-        names = rds_points["part"].astype(str).reset_index(drop=True)
-        if not isinstance(query.dtype, pd.StringDtype):
-            query = query.astype(str)
-        codes, uniques = pd.factorize(pd.concat([names, query], ignore_index=True))
+        names_t = _text_array(rds_points["part"])
+        query_t = _text_array(query) if names_t is not None else None
+        self.text = query_t is not None
+        if query_t is not None:
+            # all text already (the usual case): astype(str) would change nothing, so
+            # factorise the plain object arrays (no conversion to and from text arrays)
+            codes, uniques = pd.factorize(np.concatenate([names_t, query_t]))
+            n_names = names_t.size
+        else:
+            if not isinstance(query, pd.Series):
+                query = pd.Series(query)
+            names = rds_points["part"].astype(str).reset_index(drop=True)
+            if not isinstance(query.dtype, pd.StringDtype):
+                query = query.astype(str)
+            codes, uniques = pd.factorize(pd.concat([names, query], ignore_index=True))
+            n_names = len(names)
         codes = codes.astype(np.int64, copy=False)
         self.n_codes = len(uniques)
-        self.query = codes[len(names) :]
-        code = codes[: len(names)]
-        vgs = np.abs(_col(rds_points, "vgs"))
-        rds = _col(rds_points, "rds_on")
+        self.query = codes[n_names:]
+        code = codes[:n_names]
+        pts = _float_columns(rds_points, ("vgs", "rds_on"))
+        vgs = np.abs(pts["vgs"])
+        rds = pts["rds_on"]
         keep = (code >= 0) & np.isfinite(rds) & ~np.isnan(vgs)
         if not keep.any():
             return
@@ -1356,15 +1406,53 @@ class _SwitchRows:
         if "part" in switches:
             part_col = switches["part"]
             self.part = part_col.to_numpy(dtype=object)
+            if not isinstance(part_col.dtype, pd.StringDtype):
+                part_col = self.part
         else:
             self.part = part_col = np.full(n, "", dtype=object)
         if "kind" in switches:
-            kind = switches["kind"].astype(str).str.strip().str.lower()
-            self.is_mos = kind.isin(_MOSFET_KINDS).to_numpy(dtype=bool)
-            self.is_igbt = kind.eq("igbt").to_numpy(dtype=bool, na_value=False)
+            self.is_mos, self.is_igbt = _kind_flags(switches["kind"])
         else:
             self.is_mos = self.is_igbt = np.zeros(n, dtype=bool)
         self.rds = _RdsLookup(rds_points, part_col)
+        self.cols = _float_columns(switches, _LOSS_COLUMNS)
+
+
+#: Float columns of the switch table read by :func:`_switch_losses`.
+_LOSS_COLUMNS = (
+    "v_rating", "rds_hot_ratio", "vce_sat", "vce_sat_i", "qg", "v_plateau", "vth_max",
+    "qgs", "qgd", "rg_int", "t_rise", "t_fall", "e_on", "e_off", "e_test_v",
+    "e_test_i", "coss",
+)  # fmt: skip
+
+
+def _kind_flags(kind: pd.Series) -> tuple[np.ndarray, np.ndarray]:
+    """(is MOSFET, is IGBT) per row of the ``kind`` column.
+
+    Kinds are compared after ``astype(str).str.strip().str.lower()``; blanks are
+    neither. The text operations run once per distinct kind, not once per row.
+    """
+    codes, uniques = pd.factorize(kind.to_numpy(dtype=object))
+    uniques = np.asarray(uniques, dtype=object)
+    # plain lower-case ASCII words are their own normal form; only the others need
+    # the text operations
+    plain = np.array(
+        [isinstance(u, str) and u.isascii() and u.isalnum() and u == u.lower()
+         for u in uniques],
+        dtype=bool,
+    )  # fmt: skip
+    mos = np.isin(uniques, _MOSFET_KINDS) & plain
+    igbt = (uniques == "igbt") & plain
+    if not plain.all():
+        norm = pd.Series(uniques[~plain], dtype=object)
+        norm = norm.astype(str).str.strip().str.lower()
+        mos[~plain] = norm.isin(_MOSFET_KINDS).to_numpy(dtype=bool)
+        igbt[~plain] = norm.eq("igbt").to_numpy(dtype=bool, na_value=False)
+    blank = codes < 0
+    codes = np.where(blank, 0, codes)
+    if len(uniques) == 0:
+        return np.zeros(len(codes), dtype=bool), np.zeros(len(codes), dtype=bool)
+    return mos[codes] & ~blank, igbt[codes] & ~blank
 
 
 def _switch_losses(
@@ -1397,6 +1485,7 @@ def _switch_losses(
         if shared is not None:
             shared["rows"] = rows
     part, is_mos, is_igbt = rows.part, rows.is_mos, rows.is_igbt
+    col = rows.cols
     known = is_mos | is_igbt
 
     use_driver = bool(driver) or driver_voltage is not None
@@ -1422,8 +1511,8 @@ def _switch_losses(
     notes = _Messages(shape)
 
     # ---- per-row data (n,)
-    v_rating = _col(switches, "v_rating")
-    k_hot = _col(switches, "rds_hot_ratio")
+    v_rating = col["v_rating"]
+    k_hot = col["rds_hot_ratio"]
     k_blank = is_mos & ~np.isfinite(k_hot)
     k_hot = np.where(k_blank, default_rds_hot_ratio(v_rating), k_hot)
     k_low = is_mos & (k_hot < 1.0)
@@ -1443,8 +1532,8 @@ def _switch_losses(
 
     # ---- conduction at 25 °C (shape)
     pc_mos = duty * bc(share.i_hot) ** 2 * bc(share.r_hot_ratio) * rds25
-    vce_sat = _col(switches, "vce_sat")
-    vce_i = _col(switches, "vce_sat_i")
+    vce_sat = col["vce_sat"]
+    vce_i = col["vce_sat_i"]
     pc_igbt = duty * i_worst * igbt_vce(i_worst, vce_sat, vce_i)
     pc25 = np.where(is_igbt, pc_igbt, np.where(is_mos, pc_mos, np.nan))
 
@@ -1455,15 +1544,15 @@ def _switch_losses(
     beta = np.zeros(shape)  # temperature coefficient of the switching loss [1/K]
     method = np.zeros(n, dtype=np.int8)  # index into _SW_METHODS
 
-    qg = _col(switches, "qg")
-    v_pl_sheet = _col(switches, "v_plateau")
-    vth_max = _col(switches, "vth_max")
+    qg = col["qg"]
+    v_pl_sheet = col["v_plateau"]
+    vth_max = col["vth_max"]
     blocked = is_mos & np.isfinite(v_pl_sheet) & (v_pl_sheet >= v_drv)
     v_pl = v_pl_sheet
     if pwm:
         # -- MOSFET gate-charge method
-        qgs = _col(switches, "qgs")
-        qgd = _col(switches, "qgd")
+        qgs = col["qgs"]
+        qgd = col["qgd"]
         qgs_bound = ~np.isfinite(qgs) & np.isfinite(qg) & np.isfinite(qgd) & (qg > qgd)
         qgs_eff = np.where(np.isfinite(qgs), qgs, np.where(qgs_bound, qg - qgd, np.nan))
         v_pl_est = ~np.isfinite(v_pl_sheet) & np.isfinite(vth_max)
@@ -1480,7 +1569,7 @@ def _switch_losses(
         v_test = QGD_TEST_FRACTION * v_rating
         qgd_scaled = gc_ok & (v > v_test)
         q_gd = np.where(qgd_scaled, qgd_at_voltage(qgd, v, v_test), qgd)
-        rg_int = _col(switches, "rg_int")
+        rg_int = col["rg_int"]
         rg_blank = gc_ok & ~np.isfinite(rg_int)
         rg_int = np.where(np.isfinite(rg_int), rg_int, settings.rg_int_default)
         r_g = count_a * r_src + r_ser + rg_int
@@ -1490,16 +1579,16 @@ def _switch_losses(
             e_gc = k_load * v * i_sw * (ivl.t_on + ivl.t_off)
 
         # -- MOSFET datasheet times (only with a gate driver)
-        t_r = _col(switches, "t_rise")
-        t_f = _col(switches, "t_fall")
+        t_r = col["t_rise"]
+        t_f = col["t_fall"]
         has_t = is_mos & np.isfinite(t_r) & np.isfinite(t_f)
         use_t = has_t & ~gc_ok & use_driver
         t_pin = has_t & ~gc_ok & ~use_driver
         e_t = k_load * v * i_sw * (t_r + t_f)
 
         # -- IGBT energies
-        e_on, e_off = _col(switches, "e_on"), _col(switches, "e_off")
-        e_v, e_i = _col(switches, "e_test_v"), _col(switches, "e_test_i")
+        e_on, e_off = col["e_on"], col["e_off"]
+        e_v, e_i = col["e_test_v"], col["e_test_i"]
         e_ok = is_igbt & np.isfinite(e_on + e_off + e_v + e_i) & (e_v > 0) & (e_i > 0)
         e_ig = igbt_switching_energy(
             e_on + e_off,
@@ -1519,7 +1608,7 @@ def _switch_losses(
         psw25 = e_sw * f
         beta = bc(np.where(is_igbt, settings.igbt_tc, 0.0))
 
-        coss = _col(switches, "coss")
+        coss = col["coss"]
         coss_blank = is_mos & ~np.isfinite(coss)
         p_coss = bc(np.where(is_mos, coss_energy(coss, v) * f, 0.0))
         p_gate = bc(np.where(known, gate_drive_power(qg, v_drv, f), np.nan))

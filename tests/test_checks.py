@@ -209,3 +209,19 @@ def test_continuous_current_rejects_above_rating_and_warns_above_eighty_percent(
     assert list(chk.ok) == [True, True, False]
     assert list(chk.extra["warn"]) == [False, True, False]
     assert chk.sense == "max" and chk.unit == "A"
+
+
+def test_ratings_given_as_text_are_read_as_numbers():
+    """A rating column that arrives as text (or mixed) is coerced, blanks are NaN: the
+    voltage check (physics §10, 0.8 derating; common practice) treats a blank rating as
+    failing and a text "60" as 60 V."""
+    sw = pd.DataFrame(
+        {
+            "part": ["A", "B", "C"],
+            "v_rating": pd.Series(["60", None, 40.0], dtype=object),
+        }
+    )
+    ch = Channel(name="heater", supply=24.0, current=2.0)
+    chk = checks.voltage_check(sw, ch, Conditions(), Settings(), diode_vf=0.0)
+    np.testing.assert_allclose(chk.limit, [48.0, np.nan, 32.0])
+    assert chk.ok.tolist() == [True, False, True]

@@ -289,3 +289,94 @@ def test_drive_table_matches_the_scalar_decision(
             assert t["vgs_on_v"].iloc[i] == pytest.approx(need.vgs_on)
         assert t["gate_min_v"].iloc[i] == gmin
         assert t["vgs_limit_v"].iloc[i] == pytest.approx(need.gate_max)
+
+
+# ------------------------------------------------------- fast paths against plain pandas
+def test_lowest_guaranteed_point_matches_pandas_grouping_with_blanks_and_inf():
+    """The array form of the lowest spec point per part (physics §1.3, E3) equals the
+    plain pandas form (drop blank points, group by part, min |V_GS|, map the parts):
+    negative P-channel levels, duplicate points, blank and infinite Rds(on), blank
+    part ids and parts without points. No physics: an equivalence of two codings."""
+    rp = pd.DataFrame(
+        {
+            "part": ["A", "A", "B", "B", None, "C", "D", "E"],
+            "vgs": [10.0, 4.5, -4.5, -2.5, 3.0, np.nan, 6.0, 5.0],
+            "rds_on": [0.008, 0.012, 0.02, np.inf, 0.01, 0.01, np.nan, 0.03],
+        }
+    )
+    parts = np.array(["B", "A", "C", "D", "E", "Z", None, "A"], dtype=object)
+    ref = drive._lowest_point_frame(rp, parts)
+    np.testing.assert_array_equal(drive._lowest_point(rp, parts), ref)
+    look = drive._RdsLookup(rp, parts)  # inf Rds(on): the look-up is not used
+    np.testing.assert_array_equal(drive._lowest_point(rp, parts, look), ref)
+    finite = rp[np.isfinite(rp["rds_on"]) | rp["rds_on"].isna()]
+    np.testing.assert_array_equal(
+        drive._lowest_point(finite, parts, drive._RdsLookup(finite, parts)),
+        drive._lowest_point_frame(finite, parts),
+    )
+    # B: the -2.5 V point has an infinite Rds(on) but is not blank, so it counts here
+    assert ref[1] == 4.5 and ref[0] == 2.5 and np.isnan(ref[2]) and np.isnan(ref[5])
+
+
+@settings(max_examples=40, deadline=None)
+@given(
+    st.lists(
+        st.tuples(
+            st.sampled_from(["A", "B", "C", "D"]),
+            st.sampled_from([2.5, 4.5, -4.5, 10.0, np.nan]),
+            st.sampled_from([0.01, 0.02, np.nan]),
+        ),
+        max_size=12,
+    ),
+    st.lists(st.sampled_from(["A", "B", "C", "D", "E"]), min_size=1, max_size=8),
+)
+def test_lowest_guaranteed_point_property_matches_pandas(rows, query):
+    """Random point tables: array form == pandas grouping form (equivalence only)."""
+    rp = pd.DataFrame(rows, columns=["part", "vgs", "rds_on"]).astype(
+        {"vgs": float, "rds_on": float}
+    )
+    parts = np.array(query, dtype=object)
+    look = drive._RdsLookup(rp, parts)
+    np.testing.assert_array_equal(
+        drive._lowest_point(rp, parts, look), drive._lowest_point_frame(rp, parts)
+    )
+
+
+def test_drive_notes_are_those_of_drive_needs_row_by_row():
+    """The notes column is built once per distinct (kind, gate_min, vgs_max) but must
+    read, row by row, as :func:`drive_needs` gives them (E14 level shifter with clamp
+    on a 24 V high side; common practice)."""
+    kinds = np.array(
+        ["pmos", "nmos", "pmos", "igbt", "diode", None, "pmos"], dtype=object
+    )
+    gmin = np.array([4.5, 4.5, np.nan, 15.0, 1.0, 2.0, 4.5])
+    vmax = np.array([20.0, 20.0, 12.0, 20.0, np.nan, 20.0, 20.0])
+    ch = Channel(name="fan", supply=24.0, current=1.0, drive=3.3, side="high")
+    got = drive._notes(kinds, gmin, vmax, "high", ch, S, True)
+    for k, g, v, text in zip(kinds, gmin, vmax, got, strict=True):
+        if k not in ("nmos", "pmos", "igbt"):
+            assert text == ""
+        else:
+            need = drive.drive_needs(k, "high", ch, S, gate_min=g, vgs_max=v)
+            assert text == "; ".join(need.notes)
+    assert "Vgs clamp" in got[0] and got[0] == got[6]
+
+
+def test_driver_arrays_keep_the_usable_drivers_rules():
+    """The array read of the drivers keeps exactly the rows :func:`_usable_drivers`
+    keeps (stock > 0 or blank, v_out given, high-side supply rating ≥ supply)."""
+    drv = drivers(
+        ("D1", "low_side", 12.0, np.nan, 5, 1.0),
+        ("D2", "high_side", 12.0, 20.0, 5, 1.0),  # 20 V rating < 24 V supply
+        ("D3", "high_side", 10.0, 60.0, 0, 1.0),  # no stock
+        ("D4", "isolated", np.nan, np.nan, 3, 1.0),  # no v_out
+        ("D5", "isolated", 15.0, np.nan, np.nan, 1.0),
+        ("D6", "high_side", 12.0, np.nan, 2, 1.0),
+    )
+    ch = Channel(name="pump", supply=24.0, current=2.0, drive=3.3, side="high")
+    v_out, kind = drive._usable_driver_arrays(drv, ch)
+    ref = drive._usable_drivers(drv, ch)
+    np.testing.assert_array_equal(v_out, ref["v_out"].to_numpy(dtype=float))
+    assert list(kind) == list(ref["kind"]) == ["low_side", "isolated", "high_side"]
+    empty = drive._usable_driver_arrays(None, ch)
+    assert empty[0].size == 0 and empty[1].size == 0

@@ -346,3 +346,36 @@ def test_final_report_of_two_devices_on_one_sink_matches_e10():
     air = junction_report([1.0], [0.008], [1.0], 40.0, rth_ja=[62.0], surge_rise=[3.0])
     assert air.tj[0] == pytest.approx(177.78, abs=0.005)
     assert air.tj_peak[0] == pytest.approx(180.78, abs=0.005)
+
+
+def test_result_frame_from_blocks_equals_the_plain_constructor():
+    """The evaluation table is assembled from one block per dtype; it must equal the
+    plain ``pd.DataFrame`` of the same columns (values, dtypes, column index, text kept
+    as ``object``) and stay an ordinary, editable frame. No physics: equivalence."""
+    from selector.evaluate import _frame
+
+    n = 5
+    cols = {
+        "part": np.array(list("abcde"), dtype=object),
+        "count": np.arange(n),
+        "p": np.linspace(0.0, 1.0, n),
+        "ok": np.array([True, False, True, True, False]),
+        "why": np.array(["", "x", "", None, np.nan], dtype=object),
+        "q": np.full(n, np.nan),
+    }
+    order = tuple(cols)
+    got = _frame(cols, order)
+    ref = pd.DataFrame(
+        {
+            k: pd.Series(v, dtype=object) if v.dtype == object else v
+            for k, v in cols.items()
+        },
+        columns=list(order),
+    )
+    pd.testing.assert_frame_equal(got, ref, check_exact=True)
+    assert list(got.dtypes) == list(ref.dtypes) and got.columns.equals(ref.columns)
+    got.loc[0, "p"] = 9.0
+    got["extra"] = 1
+    assert got.loc[0, "p"] == 9.0 and cols["p"][0] == 0.0  # the inputs are not shared
+    empty = _frame({k: v[:0] for k, v in cols.items()}, order)
+    assert len(empty) == 0 and list(empty.dtypes) == list(ref.dtypes)

@@ -715,3 +715,57 @@ def test_results_broadcast_over_counts_and_temperatures():
     assert t.part[3, 1] == "E4b"
     frame = t.to_frame()
     assert len(frame) == 8 and {"p_dev_w", "p1_w_per_k", "i_dev_a"} <= set(frame)
+
+
+# ------------------------------------------------------- fast paths against plain pandas
+def test_switch_kind_flags_follow_the_text_normalisation():
+    """Kinds are compared after strip + lower case (inventory contract); the per-unique
+    shortcut must agree with the plain pandas text form on odd spellings and blanks.
+    No physics: an equivalence of two codings."""
+    kind = pd.Series(
+        ["nmos", " PMOS", "igbt ", "IGBT", None, np.nan, "diode", "n-mos", 7, "nmos"],
+        dtype=object,
+    )
+    mos, igbt = L._kind_flags(kind)
+    norm = kind.astype(str).str.strip().str.lower()
+    np.testing.assert_array_equal(mos, norm.isin(("nmos", "pmos")).to_numpy(bool))
+    np.testing.assert_array_equal(igbt, norm.eq("igbt").to_numpy(bool, na_value=False))
+    assert mos.tolist()[:4] == [True, True, False, False]
+    assert igbt.tolist()[:4] == [False, False, True, True]
+
+
+def test_rds_lookup_text_shortcut_equals_the_converted_ids():
+    """Part ids are matched as text (``astype(str)``): plain text ids take the shortcut,
+    ids of other types (numbers) the conversion; both give the §1.3 rule (highest
+    point ≤ drive, E3: 12 mΩ at 4.5 V for a 5 V drive)."""
+    rp = pd.DataFrame(
+        {
+            "part": ["E3", "E3", "7"],
+            "vgs": [10.0, 4.5, 4.5],
+            "rds_on": [0.008, 0.012, 0.02],
+        }
+    )
+    r, used = L.rds_at_drive(rp, np.array(["E3", "7", None], dtype=object), 5.0)
+    np.testing.assert_allclose(r[:2], [0.012, 0.02])
+    assert np.isnan(r[2]) and used[0] == 4.5
+    r2, _ = L.rds_at_drive(rp, np.array([7, "E3"], dtype=object), 12.0)  # number id
+    np.testing.assert_allclose(r2, [0.02, 0.008])
+    r3, _ = L.rds_at_drive(rp, pd.Series(["E3", "7"], dtype="str"), 12.0)
+    np.testing.assert_allclose(r3, [0.008, 0.02])
+
+
+def test_float_columns_read_like_the_coercing_reader():
+    """The one-pass column reader gives the same arrays as ``_col`` for float, integer,
+    text-with-numbers and absent columns (blank → NaN)."""
+    df = pd.DataFrame(
+        {
+            "a": [1.0, np.nan, 3.0],
+            "b": [1, 2, 3],
+            "c": pd.Series(["4.5", "x", None], dtype=object),
+        }
+    )
+    got = L._float_columns(df, ("a", "b", "c", "zz", "a"))
+    assert set(got) == {"a", "b", "c", "zz"}
+    for k, v in got.items():
+        np.testing.assert_array_equal(v, L._col(df, k))
+        assert v.dtype == float
