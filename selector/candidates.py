@@ -110,7 +110,9 @@ can never break a stock limit, whatever the other channels take.
 
 from __future__ import annotations
 
+import dataclasses
 import math
+from collections.abc import MutableMapping
 from dataclasses import dataclass, field
 from typing import Any
 
@@ -151,6 +153,9 @@ CANDIDATE_COLUMNS: dict[str, str] = {
 }
 
 MOUNTS = ("sink", "air", "group")
+
+#: Entries a caller's memo (see :func:`build_selection`) keeps at most.
+MEMO_ENTRIES = 256
 
 #: Defaults used when a hand-built table leaves a column out.
 _DEFAULTS = {
@@ -1337,7 +1342,12 @@ def _enrich(kept: pd.DataFrame, base: pd.DataFrame | None) -> pd.DataFrame:
 
 
 def build_selection(
-    inventory, design, screens: dict, settings=None, prune: PruneSettings | None = None
+    inventory,
+    design,
+    screens: dict,
+    settings=None,
+    prune: PruneSettings | None = None,
+    memo: MutableMapping | None = None,
 ) -> CandidateSet:
     """Candidates of every channel and the :class:`selector.optimize.SelectionProblem`.
 
@@ -1348,6 +1358,10 @@ def build_selection(
     screens : channel name -> :class:`selector.screening.ScreenResult`.
     settings : engineering defaults (unused here; the screening used them).
     prune : :class:`PruneSettings`.
+    memo : optional dict the caller keeps for this one inventory: each channel's
+        candidates are kept there and reused while its screening object, the
+        conditions, the pruning, the board's demand and the own-sink frontier are the
+        same (the page passes its screening cache).
     """
     from selector.optimize import GroupSinks, SelectionProblem
     from selector.screening import driver_candidates
@@ -1386,19 +1400,43 @@ def build_selection(
         for p in sorted(packages)
     }
     per: dict[str, ChannelCandidates] = {}
+    frontier_key = tuple((p, f.tobytes()) for p, f in sorted(own_frontier.items()))
     for c in channels:
         sc = screens.get(c.name)
         passed = sc.passed if sc is not None else pd.DataFrame()
-        per[c.name] = channel_candidates(
+        # a channel's candidates depend on its screening (the same object when the
+        # caller's cache kept it), the conditions, the pruning, the board's demand and
+        # the own-sink frontier; everything else comes from the inventory the memo is
+        # tied to
+        key = (
+            "candidates",
             c,
             cond,
-            passed,
-            interfaces=itf,
-            sink_table=sink_table,
-            own_frontier=own_frontier,
-            prune=prune,
-            board_demand=board_demand,
+            prune,
+            tuple(sorted(board_demand.items())),
+            frontier_key,
+            id(sc),
         )
+        hit = memo.get(key) if memo is not None and sc is not None else None
+        if hit is not None and hit[0] is sc:
+            cc = hit[1]
+        else:
+            cc = channel_candidates(
+                c,
+                cond,
+                passed,
+                interfaces=itf,
+                sink_table=sink_table,
+                own_frontier=own_frontier,
+                prune=prune,
+                board_demand=board_demand,
+            )
+            if memo is not None and sc is not None:
+                while len(memo) >= MEMO_ENTRIES:
+                    memo.pop(next(iter(memo)))  # oldest first
+                memo[key] = (sc, cc)
+        # the group stage below replaces tables and adds to ``dropped``: a copy each
+        per[c.name] = dataclasses.replace(cc, dropped=dict(cc.dropped))
     quantity = {c.name: int(c.quantity) for c in channels}
     enforce = {"diode"} | ({"driver"} if len(inventory.drivers) else set())
 

@@ -129,8 +129,9 @@ def select(
     time_limit : [s] budget of the integer program; an answer found when it runs out is
         marked not proven optimal.
     prune : how many alternatives the candidate stage keeps.
-    screen_cache : a dict the caller keeps for this inventory (see :func:`screen_all`);
-        the page passes one so that a re-run after one edit screens only what changed.
+    screen_cache : a dict the caller keeps for this inventory (see :func:`screen_all`
+        and the ``memo`` of :func:`selector.candidates.build_selection`); the page passes
+        one so that a re-run after one edit screens and builds only what changed.
 
     Returns
     -------
@@ -149,7 +150,9 @@ def select(
     settings = settings or Settings()
     t0 = time.perf_counter()
     screens = screen_all(inventory, design, settings, screen_cache)
-    cset = _cand.build_selection(inventory, design, screens, settings, prune)
+    cset = _cand.build_selection(
+        inventory, design, screens, settings, prune, memo=screen_cache
+    )
     rejected = {
         c.name: _funnel(screens.get(c.name), cset.channels.get(c.name))
         for c in design.channels

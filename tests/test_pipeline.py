@@ -490,23 +490,32 @@ def test_each_copy_has_its_own_sink_in_the_final_evaluation():
 
 def test_screen_cache_rescreens_only_the_edited_channel(demo, demo_result, monkeypatch):
     """With a cache kept for the inventory, the answer is the same as without it, and
-    after one channel's current changes only that channel is screened again."""
+    after one channel's current changes only that channel is screened and built again."""
     inv, design = demo
     cache: dict = {}
     first = pipeline.select(inv, design, top=3, screen_cache=cache)
     assert [s.total_cost for s in first.solutions] == [
         s.total_cost for s in demo_result.solutions
     ]
-    assert len(cache) == len(design.channels)
+    screen_keys = [k for k in cache if isinstance(k[0], Channel)]
+    built_keys = [k for k in cache if k[0] == "candidates"]
+    assert len(screen_keys) == len(built_keys) == len(design.channels)
 
     screened: list[str] = []
+    built: list[str] = []
     real = pipeline._screening.screen_channel
+    real_build = pipeline._cand.channel_candidates
 
     def counting(inventory, channel, *args, **kwargs):
         screened.append(channel.name)
         return real(inventory, channel, *args, **kwargs)
 
+    def counting_build(channel, *args, **kwargs):
+        built.append(channel.name)
+        return real_build(channel, *args, **kwargs)
+
     monkeypatch.setattr(pipeline._screening, "screen_channel", counting)
+    monkeypatch.setattr(pipeline._cand, "channel_candidates", counting_build)
     c0 = design.channels[0]
     edited = dataclasses.replace(
         design,
@@ -515,6 +524,7 @@ def test_screen_cache_rescreens_only_the_edited_channel(demo, demo_result, monke
     )
     again = pipeline.select(inv, edited, top=3, screen_cache=cache)
     assert screened == [c0.name]
+    assert built == [c0.name]
     fresh = pipeline.select(inv, edited, top=3)
     assert [s.total_cost for s in again.solutions] == [
         s.total_cost for s in fresh.solutions
