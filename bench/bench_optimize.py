@@ -221,7 +221,7 @@ def synthetic_inventory(n_switches: int, n_sinks: int, seed: int = 4) -> Invento
         ],
         columns=["part", "price", "stock", "kind", "v_out", "i_peak", "v_supply_max"],
     )
-    return Inventory(
+    inv = Inventory(
         switches=sw,
         heatsinks=hs,
         interfaces=itf,
@@ -231,6 +231,8 @@ def synthetic_inventory(n_switches: int, n_sinks: int, seed: int = 4) -> Invento
         sink_airflow=pd.DataFrame(columns=["part", "airflow", "rth_sa"]),
         report=InventoryReport(),
     )
+    # text columns as plain objects, as select() makes them before the pick
+    return pipeline.plain_text(inv)
 
 
 def board_design() -> Design:

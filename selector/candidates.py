@@ -183,9 +183,10 @@ def candidate_frame(rows: list[dict] | pd.DataFrame) -> pd.DataFrame:
                 v = np.full(n, _DEFAULTS[kind], dtype=object if kind == "str" else None)
         else:
             v = df[col].to_numpy()
-        if kind == "str":
+        if kind == "str":  # plain objects: arrow strings make row selection slow
             v = np.asarray(v, dtype=object).copy()
             v[pd.isna(v)] = ""
+            v = pd.Series(v, index=pd.RangeIndex(n), dtype=object)
         elif kind == "int":
             v = np.asarray(v).astype(int)
         elif kind == "bool":
@@ -197,12 +198,8 @@ def candidate_frame(rows: list[dict] | pd.DataFrame) -> pd.DataFrame:
     extra = [c for c in df.columns if c not in CANDIDATE_COLUMNS]
     order = list(df.columns) + [c for c in CANDIDATE_COLUMNS if c not in df.columns]
     for c in extra:
-        cols[c] = df[c].to_numpy()
-    out = pd.DataFrame({c: cols[c] for c in order})
-    for col, kind in CANDIDATE_COLUMNS.items():
-        if kind == "str":  # keep object dtype (arrow strings make row selection slow)
-            out[col] = pd.Series(cols[col], dtype=object)
-    return out
+        cols[c] = pd.Series(df[c].to_numpy(), index=pd.RangeIndex(n), dtype=df[c].dtype)
+    return pd.DataFrame({c: cols[c] for c in order}, index=pd.RangeIndex(n))
 
 
 # ======================================================================================
@@ -349,6 +346,10 @@ def _text(df: pd.DataFrame, col: str) -> np.ndarray:
         return np.full(len(df), "", dtype=object)
     v = df[col].to_numpy(dtype=object)
     blank = pd.isna(v)
+    if pd.api.types.infer_dtype(v, skipna=True) in ("string", "empty"):
+        out = v.copy()
+        out[blank] = ""
+        return out
     return np.array(
         ["" if b else str(x) for x, b in zip(v, blank, strict=True)], object
     )
@@ -582,7 +583,9 @@ def _base_rows(channel, passed: pd.DataFrame, quantity: int) -> pd.DataFrame:
             "switch": _obj(_text(passed, "part")),
             "count": passed["count"].to_numpy(dtype=int),
             "package": _obj(
-                pd.Series(_text(passed, "package")).str.upper().to_numpy(dtype=object)
+                pd.Series(_text(passed, "package"), dtype=object)
+                .str.upper()
+                .to_numpy(dtype=object)
             ),
             "kind": _obj(kind),
             "side": _obj(side),
@@ -697,7 +700,10 @@ def _interface_rows(
         io["interface"].astype(str).to_numpy(dtype=object), index=opt.index
     )
     opt["interface_price"] = io["interface_price"].to_numpy(float)
-    opt["interface_stock"] = opt["interface"].map(istock).astype(float).to_numpy()
+    opt["interface_stock"] = np.array(
+        [istock.get(p, np.nan) for p in opt["interface"].to_numpy(dtype=object)],
+        dtype=float,
+    )
     opt["insulating"] = io["insulating"].to_numpy(bool)
     opt["rth_cs_k_per_w"] = io["rth_cs_k_per_w"].to_numpy(float)
     opt["dev_rise_k"] = io["dev_rise_k"].to_numpy(float)
@@ -856,9 +862,9 @@ def _prune_ungrouped(
 
 
 def _need_class(df: pd.DataFrame) -> np.ndarray:
-    return (
-        df["needs_diode"].astype(str) + "/" + df["driver_need"].astype(str)
-    ).to_numpy(dtype=object)
+    d = df["needs_diode"].to_numpy()
+    n = df["driver_need"].to_numpy(dtype=object)
+    return np.array([f"{a}/{b}" for a, b in zip(d, n, strict=True)], dtype=object)
 
 
 def _ungrouped_table(
@@ -1016,7 +1022,7 @@ def channel_candidates(
 def _fit_matrix(sinks: pd.DataFrame, packages) -> np.ndarray:
     """(S, M) bool: sink s fits the package of item m (vectorised over package codes)."""
     codes, uniq = pd.factorize(
-        pd.Series(np.asarray(packages, dtype=object)).str.upper()
+        pd.Series(np.asarray(packages, dtype=object), dtype=object).str.upper()
     )
     cache: dict[Any, tuple[str, ...]] = {}
     fits = []

@@ -58,6 +58,7 @@ from __future__ import annotations
 
 import math
 from dataclasses import dataclass, field
+from typing import Any
 
 import numpy as np
 import pandas as pd
@@ -683,11 +684,16 @@ def drive_table(
     th_ok = np.isnan(need_th) | np.isnan(vgs_on) | (vgs_on >= need_th - 1e-12)
 
     notes = _notes(kind, gate_min, vgs_max, side, channel, settings, clamp)
+
+    def text(values: Any) -> pd.Series:  # plain objects: arrow strings cost more later
+        v = np.asarray(values, dtype=object)
+        return pd.Series(np.broadcast_to(v, (n,)).copy(), index=idx, dtype=object)
+
     return pd.DataFrame(
         {
-            "side": side,
-            "topology": topology,
-            "driver_kind": driver_kind,
+            "side": text(side),
+            "topology": text(topology),
+            "driver_kind": text(driver_kind),
             "uses_driver": uses_driver,
             "clamp": clamp_arr,
             "divider_r2_ohm": r2,
@@ -706,8 +712,8 @@ def drive_table(
             "gate_drive_level_ok": gate_level_ok,
             "gate_overvoltage_ok": ov_ok,
             "threshold_cold_ok": th_ok,
-            "drive_case": drive_case,
-            "drive_notes": notes,
+            "drive_case": text(drive_case),
+            "drive_notes": text(notes),
         },
         index=idx,
     )

@@ -60,11 +60,63 @@ SINK_HELD_J_PER_K = 1e12  # [J/K] stands for "sink does not move during a surge"
 SCREEN_CACHE_ENTRIES = 256  # channel screenings a caller's cache keeps at most
 TIME_LIMIT_DIAGNOSIS = 5.0  # [s] per sub-problem when looking for the infeasible part
 
-__all__ = ["evaluate_solution", "format_result", "screen_all", "select", "why"]
+__all__ = [
+    "evaluate_solution",
+    "format_result",
+    "plain_text",
+    "screen_all",
+    "select",
+    "why",
+]
 
 
 # --------------------------------------------------------------------------------------
 # the chain
+
+
+_TABLES = (
+    "switches",
+    "heatsinks",
+    "interfaces",
+    "diodes",
+    "drivers",
+    "rds_points",
+    "sink_airflow",
+)
+
+
+def plain_text(inventory):
+    """The inventory with its text columns as plain object arrays.
+
+    pandas ≥ 3 holds text as arrow strings (hand-built tables; the reader's Rds(on)
+    points), whose row selection and conversion cost more than the arithmetic on a
+    large inventory. Returns the same
+    object when nothing needs converting, else a shallow copy with converted tables (the
+    caller's tables are left as they are).
+    """
+    changed = {}
+    for name in _TABLES:
+        df = getattr(inventory, name, None)
+        if not isinstance(df, pd.DataFrame):
+            continue
+        cols = [
+            c
+            for c in df.columns
+            if df[c].dtype != object and pd.api.types.is_string_dtype(df[c].dtype)
+        ]
+        if cols:
+            df = df.copy(deep=False)
+            for c in cols:
+                df[c] = df[c].astype(object)
+            changed[name] = df
+    if not changed:
+        return inventory
+    if dataclasses.is_dataclass(inventory) and not isinstance(inventory, type):
+        return dataclasses.replace(inventory, **changed)
+    out = copy.copy(inventory)
+    for name, df in changed.items():
+        setattr(out, name, df)
+    return out
 
 
 def screen_all(
@@ -149,6 +201,7 @@ def select(
     """
     settings = settings or Settings()
     t0 = time.perf_counter()
+    inventory = plain_text(inventory)
     screens = screen_all(inventory, design, settings, screen_cache)
     cset = _cand.build_selection(
         inventory, design, screens, settings, prune, memo=screen_cache
@@ -1114,6 +1167,7 @@ def why(
         The design has no channel of that name.
     """
     settings = settings or Settings()
+    inventory = plain_text(inventory)
     try:
         channel = design.channel(channel_name)
     except KeyError:

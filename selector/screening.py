@@ -502,7 +502,9 @@ def _with_switches(inventory: Any, mask: np.ndarray) -> Any:
     sw = inventory.switches[mask]
     rp = getattr(inventory, "rds_points", None)
     if rp is not None and len(rp):
-        keep = pd.Index(rp["part"].to_numpy(object)).isin(sw["part"].to_numpy(object))
+        keep = pd.Index(rp["part"].to_numpy(object), dtype=object).isin(
+            sw["part"].to_numpy(object)
+        )
         rp = rp[keep]
     if dataclasses.is_dataclass(inventory) and not isinstance(inventory, type):
         return dataclasses.replace(inventory, switches=sw, rds_points=rp)
@@ -1056,18 +1058,24 @@ def _finish_side(
             tuple(names[(int(p) >> np.arange(len(rule_ids))) & 1 == 1]) for p in pats
         ]
         rules_col = [named[k] for k in np.asarray(inv).ravel()]
+
+    def obj(values: Any) -> pd.Series:  # plain objects: arrow strings cost more here
+        if isinstance(values, list):  # of tuples: one cell each
+            return pd.Series(values, dtype=object)
+        return pd.Series(np.asarray(values, dtype=object), dtype=object)
+
     rejected = pd.DataFrame(
         {
-            "part": t["part"].to_numpy()[rej_idx],
+            "part": obj(t["part"].to_numpy()[rej_idx]),
             "count": t["count"].to_numpy()[rej_idx],
-            "kind": t["kind"].to_numpy()[rej_idx],
-            "package": t["package"].to_numpy()[rej_idx],
+            "kind": obj(t["kind"].to_numpy()[rej_idx]),
+            "package": obj(t["package"].to_numpy()[rej_idx]),
             "price": t["price"].to_numpy()[rej_idx],
-            "side": t["side"].to_numpy()[rej_idx],
-            "rule": names[first[rej_idx]] if len(rej_idx) else np.array([], object),
-            "rules": rules_col,
+            "side": obj(t["side"].to_numpy()[rej_idx]),
+            "rule": obj(names[first[rej_idx]] if len(rej_idx) else []),
+            "rules": obj(rules_col),
             "_first": first[rej_idx],
-            "_refs": [((job_id, k, ""),) for k in range(len(rej_idx))],
+            "_refs": obj([((job_id, k, ""),) for k in range(len(rej_idx))]),
             "_best": np.zeros(len(rej_idx), dtype=int),
         }
     )
@@ -1081,7 +1089,9 @@ def _finish_side(
         diode_text,
     )
     passed = t[~bad].copy()
-    passed["notes"] = _row_notes(passed, channel, settings)
+    passed["notes"] = pd.Series(
+        _row_notes(passed, channel, settings), index=passed.index, dtype=object
+    )
     return passed, rejected, job
 
 

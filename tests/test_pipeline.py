@@ -529,3 +529,25 @@ def test_screen_cache_rescreens_only_the_edited_channel(demo, demo_result, monke
     assert [s.total_cost for s in again.solutions] == [
         s.total_cost for s in fresh.solutions
     ]
+
+
+def test_plain_text_converts_arrow_strings_and_leaves_the_callers_tables(demo):
+    """Hand-built tables (pandas ≥ 3 infers arrow strings) are read with plain object
+    text without touching the caller's frames; an inventory already plain comes back as
+    the same object."""
+    inv, _design = demo
+    inv = pipeline.plain_text(inv)
+    assert pipeline.plain_text(inv) is inv
+    arrow = dataclasses.replace(
+        inv,
+        switches=inv.switches.astype({"part": "str", "kind": "str", "package": "str"}),
+    )
+    plain = pipeline.plain_text(arrow)
+    assert plain is not arrow
+    assert plain.switches["part"].dtype == object
+    assert str(arrow.switches["part"].dtype) == "str"  # the caller's table as it was
+    assert plain.switches["part"].tolist() == inv.switches["part"].tolist()
+    pd.testing.assert_frame_equal(
+        plain.switches.drop(columns=["part", "kind", "package"]),
+        inv.switches.drop(columns=["part", "kind", "package"]),
+    )
