@@ -154,6 +154,17 @@ CANDIDATE_COLUMNS: dict[str, str] = {
 
 MOUNTS = ("sink", "air", "group")
 
+#: Columns of the passed rows that :func:`selector.evaluate.interface_options` reads.
+_INTERFACE_INPUT = (
+    "package",
+    "count",
+    "p_dev_w",
+    "surge_dp_w",
+    "rth_jc_k_per_w",
+    "surge_rise_k",
+    "t_lim_c",
+)
+
 #: Entries a caller's memo (see :func:`build_selection`) keeps at most.
 MEMO_ENTRIES = 256
 
@@ -353,6 +364,16 @@ def _text(df: pd.DataFrame, col: str) -> np.ndarray:
     return np.array(
         ["" if b else str(x) for x, b in zip(v, blank, strict=True)], object
     )
+
+
+def _strs(col: pd.Series) -> pd.Series:
+    """A column as plain object text ("" for blanks), without a detour through arrow
+    strings (what ``astype(str)`` makes in pandas ≥ 3); the column itself if it is
+    already object text."""
+    v = col.to_numpy(dtype=object)
+    if col.dtype == object and pd.api.types.infer_dtype(v, skipna=False) == "string":
+        return col
+    return pd.Series(_text(col.to_frame("x"), "x"), index=col.index, dtype=object)
 
 
 def _obj(values, n: int | None = None, index=None) -> pd.Series:
@@ -697,7 +718,7 @@ def _interface_rows(
         zip(interfaces["part"].astype(str), _num(interfaces, "stock"), strict=True)
     )
     opt["interface"] = _obj(
-        io["interface"].astype(str).to_numpy(dtype=object), index=opt.index
+        _strs(io["interface"]).to_numpy(dtype=object), index=opt.index
     )
     opt["interface_price"] = io["interface_price"].to_numpy(float)
     opt["interface_stock"] = np.array(
@@ -862,9 +883,15 @@ def _prune_ungrouped(
 
 
 def _need_class(df: pd.DataFrame) -> np.ndarray:
-    d = df["needs_diode"].to_numpy()
-    n = df["driver_need"].to_numpy(dtype=object)
-    return np.array([f"{a}/{b}" for a, b in zip(d, n, strict=True)], dtype=object)
+    d = df["needs_diode"].to_numpy(dtype=bool).astype(int)
+    codes, uniq = pd.factorize(df["driver_need"].to_numpy(dtype=object))
+    # the same text label for the same needs in every table: "<diode>/<driver need>"
+    labels = np.array(
+        [f"{flag}/{u}" for u in uniq for flag in (False, True)] + ["False/", "True/"],
+        dtype=object,
+    )
+    codes = np.where(codes < 0, len(uniq), codes)
+    return labels[codes * 2 + d]
 
 
 def _ungrouped_table(
@@ -965,7 +992,9 @@ def channel_candidates(
     )
     keep_rows = np.flatnonzero(enough)
     base = base.iloc[keep_rows].reset_index(drop=True)
-    sub_passed = passed.reset_index(drop=True).iloc[keep_rows].reset_index(drop=True)
+    # only what the interface options read: the passed rows are wide (~70 columns)
+    narrow = passed[[c for c in _INTERFACE_INPUT if c in passed.columns]]
+    sub_passed = narrow.reset_index(drop=True).iloc[keep_rows].reset_index(drop=True)
     grouped = bool(channel.heatsink_group)
     opts, bad_if = _interface_rows(
         base, sub_passed, interfaces, conditions, q, LIGHT_COLUMNS if grouped else None
@@ -1159,7 +1188,7 @@ def _reduce_group(
     chan = rows["channel"].to_numpy()
     heat = q * rows["p_total_w"].to_numpy(float)
     dev = q * rows["count"].to_numpy(float)
-    touching = (rows["tab_node"].astype(str).to_numpy() != "") & ~rows[
+    touching = (_strs(rows["tab_node"]).to_numpy() != "") & ~rows[
         "insulating"
     ].to_numpy(bool)
     copies_clash = touching & rows["node_per_copy"].to_numpy(bool) & (q > 1)
@@ -1209,7 +1238,7 @@ def _reduce_group(
     kprice = price[sink_ok]
     chunk = max(int(2_000_000 // max(kept_sinks.size, 1)), 1000)
     st = table.iloc[kept_sinks]
-    pk_codes, pk_uniq = pd.factorize(rows["package"].astype(str))
+    pk_codes, pk_uniq = pd.factorize(_strs(rows["package"]))
     fit_tab = _fit_matrix(st, np.asarray(pk_uniq, dtype=object))  # (S, packages)
 
     def pmax_chunks(idx: np.ndarray):
@@ -1232,22 +1261,20 @@ def _reduce_group(
     # builds of one part that another build of the same part dominates go first
     # (step 4's first half; done here because it is cheap and shrinks step 3)
     klass_all = (
-        rows["channel"].astype(str)
+        _strs(rows["channel"])
         + "|"
-        + rows["package"].astype(str)
+        + _strs(rows["package"])
         + "|"
-        + rows["needs_diode"].astype(str)
+        + _strs(rows["needs_diode"])
         + "|"
-        + rows["driver_need"].astype(str)
+        + _strs(rows["driver_need"])
     ).to_numpy(dtype=object)
     vals_all = np.column_stack([cost_lo, heat, -h, dev, touching.astype(float)])
     pidx = np.flatnonzero(possible)
     useful_mask = np.zeros(len(rows), dtype=bool)
     if pidx.size:
         own = local_front(
-            klass_all[pidx]
-            + "|"
-            + rows["switch"].astype(str).to_numpy(dtype=object)[pidx],
+            klass_all[pidx] + "|" + _strs(rows["switch"]).to_numpy(dtype=object)[pidx],
             vals_all[pidx],
         )
         useful_mask[pidx[own]] = True
@@ -1398,7 +1425,7 @@ def build_selection(
     for c in channels:
         sc = screens.get(c.name)
         if sc is not None and len(sc.passed):
-            packages |= set(sc.passed["package"].astype(str).str.upper().unique())
+            packages |= set(_strs(sc.passed["package"]).str.upper().unique())
             t_lim_hi = max(t_lim_hi, float(np.nanmax(_num(sc.passed, "t_lim_c"))))
     rise_hi = max(t_lim_hi - cond.ambient_max, 2.0)
     own_frontier = {
@@ -1490,9 +1517,9 @@ def build_selection(
         safe = lo.copy()
         keys = pd.DataFrame(
             {
-                "c": t["channel"].astype(str).to_numpy(),
+                "c": _strs(t["channel"]).reset_index(drop=True),
                 "d": t["needs_diode"].to_numpy(bool),
-                "n": t["driver_need"].astype(str).to_numpy(),
+                "n": _strs(t["driver_need"]).reset_index(drop=True),
             }
         )
         for (c, d, n), idx in keys.groupby(["c", "d", "n"], sort=False).indices.items():
@@ -1506,7 +1533,7 @@ def build_selection(
             lo[idx] += add_lo
             safe[idx] += add_safe
         parts_safe = stock_allows(t["switch_stock"], board_demand["switches"]) & (
-            (t["interface"].astype(str) == "").to_numpy()
+            (_strs(t["interface"]) == "").to_numpy()
             | stock_allows(t["interface_stock"], board_demand["interfaces"])
         )
         return lo, np.where(parts_safe, safe, np.inf)
@@ -1517,7 +1544,7 @@ def build_selection(
     safe_sink = stock_allows(_num(sink_table, "stock"), board_demand["heatsinks"])
     for g, members in groups.items():
         rows = pd.concat([per[m].table for m in members], ignore_index=True)
-        pk = sorted(rows["package"].astype(str).unique()) if len(rows) else []
+        pk = sorted(_strs(rows["package"]).unique()) if len(rows) else []
         gf = sink_frontier(sink_table, pk, 1.0, rise_hi, layers=prune.sink_layers)
         if len(rows) == 0:
             group_frontier[g] = gf
