@@ -366,10 +366,23 @@ def _text(df: pd.DataFrame, col: str) -> np.ndarray:
     )
 
 
+def _upper(text: np.ndarray) -> np.ndarray:
+    """Upper-case text (object array), each distinct value converted once."""
+    codes, uniq = pd.factorize(np.asarray(text, dtype=object))
+    up = np.array([str(u).upper() for u in uniq] + [""], dtype=object)
+    return up[np.where(codes < 0, len(uniq), codes)]
+
+
 def _strs(col: pd.Series) -> pd.Series:
     """A column as plain object text ("" for blanks), without a detour through arrow
     strings (what ``astype(str)`` makes in pandas ≥ 3); the column itself if it is
     already object text."""
+    if col.dtype == bool:
+        return pd.Series(
+            np.where(col.to_numpy(), "True", "False").astype(object),
+            index=col.index,
+            dtype=object,
+        )
     v = col.to_numpy(dtype=object)
     if col.dtype == object and pd.api.types.infer_dtype(v, skipna=False) == "string":
         return col
@@ -603,11 +616,7 @@ def _base_rows(channel, passed: pd.DataFrame, quantity: int) -> pd.DataFrame:
             "row": np.arange(n),
             "switch": _obj(_text(passed, "part")),
             "count": passed["count"].to_numpy(dtype=int),
-            "package": _obj(
-                pd.Series(_text(passed, "package"), dtype=object)
-                .str.upper()
-                .to_numpy(dtype=object)
-            ),
+            "package": _obj(_upper(_text(passed, "package"))),
             "kind": _obj(kind),
             "side": _obj(side),
             "tab": _obj(_text(passed, "tab")),
@@ -1050,9 +1059,7 @@ def channel_candidates(
 
 def _fit_matrix(sinks: pd.DataFrame, packages) -> np.ndarray:
     """(S, M) bool: sink s fits the package of item m (vectorised over package codes)."""
-    codes, uniq = pd.factorize(
-        pd.Series(np.asarray(packages, dtype=object), dtype=object).str.upper()
-    )
+    codes, uniq = pd.factorize(_upper(np.asarray(packages, dtype=object)))
     cache: dict[Any, tuple[str, ...]] = {}
     fits = []
     for f in sinks["fits"]:
@@ -1425,7 +1432,7 @@ def build_selection(
     for c in channels:
         sc = screens.get(c.name)
         if sc is not None and len(sc.passed):
-            packages |= set(_strs(sc.passed["package"]).str.upper().unique())
+            packages |= set(_upper(_strs(sc.passed["package"]).unique()))
             t_lim_hi = max(t_lim_hi, float(np.nanmax(_num(sc.passed, "t_lim_c"))))
     rise_hi = max(t_lim_hi - cond.ambient_max, 2.0)
     own_frontier = {
