@@ -264,7 +264,14 @@ class ScreenResult:
                 else (str(rr.get("reason", pd.Series([""] * len(rr))).iloc[i]), ())
                 for i in pos
             ]
-        refs = rr["_refs"].to_numpy()[pos]
+        jobs = rr["_job"].to_numpy()[pos]
+        rows_at = rr["_row"].to_numpy()[pos]
+        # a row rejected on one side refers to (its job, its row); a side "any" row
+        # failing on both sides carries its references in ``_refs``
+        refs = [
+            r if r is not None else ((int(j), int(k), ""),)
+            for r, j, k in zip(rr["_refs"].to_numpy()[pos], jobs, rows_at, strict=True)
+        ]
         best = rr["_best"].to_numpy()[pos]
         want: dict[int, set[int]] = {}
         for rs in refs:
@@ -300,7 +307,10 @@ class ScreenResult:
                 self._rejected = rr
             else:
                 texts = self.reasons_at(np.arange(len(rr)))
-                out = rr.drop(columns=["_refs", "_best", "_first"], errors="ignore")
+                out = rr.drop(
+                    columns=["_refs", "_best", "_first", "_job", "_row"],
+                    errors="ignore",
+                )
                 out = out.copy()
                 out["reason"] = [a for a, _ in texts]
                 out["reasons"] = [b for _, b in texts]
@@ -1039,8 +1049,9 @@ def _finish_side(
 ) -> tuple[pd.DataFrame, pd.DataFrame, _SentenceJob]:
     """(passed, rejected rows, sentence job) of one side's table.
 
-    The rejected rows refer to the job (``_refs`` = ((job_id, row, ""),)); their
-    sentences are written only when read (:attr:`ScreenResult.rejected`).
+    The rejected rows refer to the job (``_job`` = job_id, ``_row`` = their row in it;
+    ``_refs`` None until side "any" merges them); their sentences are written only when
+    read (:attr:`ScreenResult.rejected`).
     """
     rule_ids = list(RULES)
     F = np.column_stack([t[f"_fail_{r}"].to_numpy(bool) for r in rule_ids])
@@ -1075,7 +1086,9 @@ def _finish_side(
             "rule": obj(names[first[rej_idx]] if len(rej_idx) else []),
             "rules": obj(rules_col),
             "_first": first[rej_idx],
-            "_refs": obj([((job_id, k, ""),) for k in range(len(rej_idx))]),
+            "_job": np.full(len(rej_idx), job_id, dtype=int),
+            "_row": np.arange(len(rej_idx)),
+            "_refs": pd.Series([None] * len(rej_idx), dtype=object),
             "_best": np.zeros(len(rej_idx), dtype=int),
         }
     )
@@ -1241,7 +1254,8 @@ def _merge_sides(
     counts = rej["count"].tolist()
     firsts = rej["_first"].tolist()
     sides = rej["side"].tolist()
-    refs = rej["_refs"].tolist()
+    job_of = rej["_job"].tolist()
+    row_of = rej["_row"].tolist()
     groups: dict[tuple[Any, Any], list[int]] = {}
     for i, key in enumerate(zip(parts, counts, strict=True)):
         if key not in ok_keys:
@@ -1250,7 +1264,7 @@ def _merge_sides(
     for idx in groups.values():
         b = max(range(len(idx)), key=lambda k: (firsts[idx[k]], -k))
         keep.append(idx[b])
-        new_refs.append(tuple((refs[i][0][0], refs[i][0][1], sides[i]) for i in idx))
+        new_refs.append(tuple((job_of[i], row_of[i], sides[i]) for i in idx))
         best.append(b)
     out = rej.iloc[keep].copy()
     out["_refs"] = new_refs
