@@ -730,10 +730,10 @@ def _interface_rows(
         _strs(io["interface"]).to_numpy(dtype=object), index=opt.index
     )
     opt["interface_price"] = io["interface_price"].to_numpy(float)
+    i_codes, i_uniq = pd.factorize(opt["interface"].to_numpy(dtype=object))
     opt["interface_stock"] = np.array(
-        [istock.get(p, np.nan) for p in opt["interface"].to_numpy(dtype=object)],
-        dtype=float,
-    )
+        [istock.get(p, np.nan) for p in i_uniq] + [np.nan], dtype=float
+    )[np.where(i_codes < 0, len(i_uniq), i_codes)]
     opt["insulating"] = io["insulating"].to_numpy(bool)
     opt["rth_cs_k_per_w"] = io["rth_cs_k_per_w"].to_numpy(float)
     opt["dev_rise_k"] = io["dev_rise_k"].to_numpy(float)
@@ -1237,7 +1237,9 @@ def _reduce_group(
         slack = prune.ranking_slack * ub + 1e-9
         lb_sum = sum(lbc.values())
         min_price = float(np.min(price)) if price.size else 0.0
-        limit = np.array([ub - (lb_sum - lbc[c]) - min_price + slack for c in chan])
+        per_member = {m: ub - (lb_sum - lbc[m]) - min_price + slack for m in members}
+        codes, uniq = pd.factorize(pd.Series(chan, dtype=object))
+        limit = np.array([per_member[c] for c in uniq], dtype=float)[codes]
         window = cost_lo <= limit
         sink_ok = price <= ub - lb_sum + slack
     kept_sinks = sinks[sink_ok]
@@ -1322,11 +1324,16 @@ def _reduce_group(
             }
 
         oh, od = others(minheat), others(mindev)
+        # per row, its member's position: the per-member (sinks,) vectors become one
+        # (members, sinks) matrix indexed by rows, without a Python loop over rows
+        m_pos = {m: i for i, m in enumerate(members)}
+        m_code = np.array([m_pos.get(c, 0) for c in chan], dtype=int)
+        oh_m = np.stack([oh[m] for m in members])
+        od_m = np.stack([od[m] for m in members])
 
         def ok_block(ix: np.ndarray, pm: np.ndarray) -> np.ndarray:
-            kc = chan[ix]
-            o_h = np.stack([oh[c] for c in kc])
-            o_d = np.stack([od[c] for c in kc])
+            o_h = oh_m[m_code[ix]]
+            o_d = od_m[m_code[ix]]
             return (
                 (pm >= heat[ix, None])
                 & (pm > 0)
@@ -1350,11 +1357,12 @@ def _reduce_group(
         bound = ub + prune.ranking_slack * ub + 1e-9 if math.isfinite(ub) else math.inf
         sink_useful = (lb_all <= bound) if math.isfinite(ub) else np.isfinite(lb_all)
         olb = others(lbs)
+        olb_m = np.stack([olb[m] for m in members])
         used_sink = np.zeros(n_s, dtype=bool)
         for ix, pm in pmax_chunks(kidx):
             useful = ok_block(ix, pm) & sink_useful[None, :]
             if math.isfinite(ub):
-                o_lb = np.stack([olb[c] for c in chan[ix]]) + kprice[None, :]
+                o_lb = olb_m[m_code[ix]] + kprice[None, :]
                 useful &= o_lb + cost_lo[ix, None] <= bound
             useful_mask[ix[~useful.any(axis=1)]] = False
             used_sink |= useful.any(axis=0)
