@@ -307,7 +307,8 @@ def local_front(keys: np.ndarray, values: np.ndarray, chunk: int = 4096) -> np.n
     if n == 0:
         return keep
     v = np.where(np.isnan(v), np.inf, v)
-    codes, _ = pd.factorize(pd.Series(np.asarray(keys, dtype=object)))
+    keys = np.asarray(keys)
+    codes, _ = pd.factorize(keys if keys.dtype.kind in "iu" else keys.astype(object))
     order = np.lexsort(tuple(v.T[::-1]) + (codes,))
     c_sorted = codes[order]
     starts = np.flatnonzero(np.r_[True, c_sorted[1:] != c_sorted[:-1]])
@@ -1114,6 +1115,7 @@ def _group_upper_bound(
     sink_pos: np.ndarray,
     n_grid: int = 40,
     per_member: int = 300,
+    member_code: np.ndarray | None = None,
 ) -> float:
     """Cost of one feasible build of the group from *safe* parts, or inf.
 
@@ -1127,19 +1129,23 @@ def _group_upper_bound(
     """
     if sinks.size == 0:
         return math.inf
-    chan = rows["channel"].to_numpy()
+    if member_code is None:  # position of each row's channel in ``members``
+        pos = {m: i for i, m in enumerate(members)}
+        member_code = np.array([pos.get(c, -1) for c in rows["channel"]], dtype=int)
     picks = []
-    for m in members:
-        idx = np.flatnonzero((chan == m) & usable & np.isfinite(cost_safe))
+    h_all = rows["h_k"].to_numpy(float)
+    for k in range(len(members)):
+        idx = np.flatnonzero((member_code == k) & usable & np.isfinite(cost_safe))
         if idx.size == 0:
             return math.inf
         c = cost_safe[idx]
         keep = np.zeros(idx.size, dtype=bool)
         keep[np.argsort(c, kind="stable")[:per_member]] = True
-        keep |= _staircase(c, rows["h_k"].to_numpy(float)[idx])
+        keep |= _staircase(c, h_all[idx])
         keep |= _staircase(c, -heat[idx])
         picks.append(idx[keep])
-    pms = [_group_pmax(rows.iloc[ix], table, sinks) for ix in picks]  # (n_c, S)
+    narrow = rows[["h_k", "package"]]  # what _group_pmax reads
+    pms = [_group_pmax(narrow.iloc[ix], table, sinks) for ix in picks]  # (n_c, S)
     lo = max(sum(float(np.min(heat[ix])) for ix in picks), 1e-9)
     hi = max(float(max(np.max(p) for p in pms)), lo * 1.001)
     grid = np.geomspace(lo, hi, n_grid)
@@ -1193,6 +1199,10 @@ def _reduce_group(
     """
     q = rows["channel"].map(quantity).to_numpy(dtype=float)
     chan = rows["channel"].to_numpy()
+    # members as integer codes: comparisons and look-ups over millions of rows
+    m_pos = {m: i for i, m in enumerate(members)}
+    ch_codes, ch_uniq = pd.factorize(pd.Series(chan, dtype=object))
+    m_code = np.array([m_pos.get(c, -1) for c in ch_uniq], dtype=int)[ch_codes]
     heat = q * rows["p_total_w"].to_numpy(float)
     dev = q * rows["count"].to_numpy(float)
     touching = (_strs(rows["tab_node"]).to_numpy() != "") & ~rows[
@@ -1207,7 +1217,7 @@ def _reduce_group(
     cost_safe = q * eff_safe
     lbc = {}
     for m in members:
-        sel = (chan == m) & usable & np.isfinite(cost_lo)
+        sel = (m_code == m_pos[m]) & usable & np.isfinite(cost_lo)
         lbc[m] = float(np.min(cost_lo[sel])) if sel.any() else math.inf
     ub = math.inf
     ss = sinks[safe_sink[sinks]] if sinks.size else sinks
@@ -1215,7 +1225,7 @@ def _reduce_group(
     spos = pos[safe_sink[sinks]] if sinks.size else pos
     # every tab insulated; or one member uninsulated (a single node on the sink)
     for live in [None, *members]:
-        allowed = ~touching | ((chan == live) & ~copies_clash)
+        allowed = ~touching | ((m_code == m_pos.get(live, -2)) & ~copies_clash)
         ub = min(
             ub,
             _group_upper_bound(
@@ -1229,6 +1239,7 @@ def _reduce_group(
                 ss,
                 sp,
                 spos,
+                member_code=m_code,
             ),
         )
     window = np.ones(len(rows), dtype=bool)
@@ -1238,8 +1249,7 @@ def _reduce_group(
         lb_sum = sum(lbc.values())
         min_price = float(np.min(price)) if price.size else 0.0
         per_member = {m: ub - (lb_sum - lbc[m]) - min_price + slack for m in members}
-        codes, uniq = pd.factorize(pd.Series(chan, dtype=object))
-        limit = np.array([per_member[c] for c in uniq], dtype=float)[codes]
+        limit = np.array([per_member[m] for m in members], dtype=float)[m_code]
         window = cost_lo <= limit
         sink_ok = price <= ub - lb_sum + slack
     kept_sinks = sinks[sink_ok]
@@ -1269,22 +1279,18 @@ def _reduce_group(
             possible[ix[alone.any(axis=1)]] = True
     # builds of one part that another build of the same part dominates go first
     # (step 4's first half; done here because it is cheap and shrinks step 3)
-    klass_all = (
-        _strs(rows["channel"])
-        + "|"
-        + _strs(rows["package"])
-        + "|"
-        + _strs(rows["needs_diode"])
-        + "|"
-        + _strs(rows["driver_need"])
-    ).to_numpy(dtype=object)
+    # class of (channel, package, diode need, driver need) as one integer code
+    klass_all = np.zeros(len(rows), dtype=np.int64)
+    for col in ("channel", "package", "needs_diode", "driver_need"):
+        codes, uniq = pd.factorize(rows[col].to_numpy(dtype=object))
+        klass_all = klass_all * (len(uniq) + 1) + (codes + 1)
     vals_all = np.column_stack([cost_lo, heat, -h, dev, touching.astype(float)])
     pidx = np.flatnonzero(possible)
     useful_mask = np.zeros(len(rows), dtype=bool)
     if pidx.size:
+        sw_codes, sw_uniq = pd.factorize(rows["switch"].to_numpy(dtype=object)[pidx])
         own = local_front(
-            klass_all[pidx] + "|" + _strs(rows["switch"]).to_numpy(dtype=object)[pidx],
-            vals_all[pidx],
+            klass_all[pidx] * (len(sw_uniq) + 1) + sw_codes, vals_all[pidx]
         )
         useful_mask[pidx[own]] = True
     # 3. per-sink bound: on sink s every member c needs Pmax(k, s) ≥ its own heat plus
@@ -1301,7 +1307,7 @@ def _reduce_group(
         for ix, pm in pmax_chunks(kidx):
             alone = (pm >= heat[ix, None]) & (pm > 0) & (kpos[None, :] >= dev[ix, None])
             for m in members:
-                sel = chan[ix] == m
+                sel = m_code[ix] == m_pos[m]
                 if sel.any():
                     minheat[m] = np.minimum(
                         minheat[m],
@@ -1326,8 +1332,6 @@ def _reduce_group(
         oh, od = others(minheat), others(mindev)
         # per row, its member's position: the per-member (sinks,) vectors become one
         # (members, sinks) matrix indexed by rows, without a Python loop over rows
-        m_pos = {m: i for i, m in enumerate(members)}
-        m_code = np.array([m_pos.get(c, 0) for c in chan], dtype=int)
         oh_m = np.stack([oh[m] for m in members])
         od_m = np.stack([od[m] for m in members])
 
@@ -1345,7 +1349,7 @@ def _reduce_group(
         for ix, pm in pmax_chunks(kidx):
             ok = ok_block(ix, pm)
             for m in members:
-                sel = chan[ix] == m
+                sel = m_code[ix] == m_pos[m]
                 if sel.any():
                     lbs[m] = np.minimum(
                         lbs[m],

@@ -591,3 +591,13 @@ def test_grouped_channel_with_every_part_out_of_stock_has_no_candidate():
     assert len(cset.channels["g2"].table) == 0
     assert cset.channels["g2"].dropped["stock"] == len(p)
     assert (cset.problem.candidates["channel"] == "g2").sum() == 0
+
+
+def test_local_front_gives_the_same_mask_for_integer_and_text_keys():
+    """The group stage passes integer class codes, other callers text keys: the same
+    grouping must give the same non-dominated builds."""
+    rng = np.random.default_rng(11)
+    values = rng.integers(0, 4, size=(300, 3)).astype(float)
+    codes = rng.integers(0, 7, size=300)
+    text = np.array([f"part-{c}" for c in codes], dtype=object)
+    assert np.array_equal(cm.local_front(codes, values), cm.local_front(text, values))
