@@ -689,8 +689,11 @@ def _side_table(
 
     # ---- thermal
     best = _best_interface(getattr(inventory, "interfaces", None))
-    pkg = t["package"].astype(str).str.upper().to_numpy()
-    cs = np.array([best.get(p, np.inf) for p in pkg], dtype=float)
+    # per distinct package, then spread to the rows
+    p_codes, p_uniq = pd.factorize(t["package"].to_numpy(dtype=object))
+    cs = np.array(
+        [best.get(str(p).upper(), np.inf) for p in p_uniq] + [np.inf], dtype=float
+    )[np.where(p_codes < 0, len(p_uniq), p_codes)]
     rjc = t["rth_jc_k_per_w"].to_numpy(float)
     rja = t["rth_ja_k_per_w"].to_numpy(float)
     r_sink = rjc + cs
@@ -980,52 +983,88 @@ def _row_notes(t: pd.DataFrame, channel: Channel, settings: Settings) -> list[st
 
 
 def _row_notes_of(t: pd.DataFrame, channel: Channel, settings: Settings) -> list[str]:
+    """The notes of these rows, "; "-joined in a fixed order (see :func:`_row_notes`).
+
+    Built item by item over the rows it concerns (the fixed texts shared, the ones
+    with numbers formatted only where they apply), then joined.
+    """
     n = len(t)
 
     def col(name: str, default: Any = None) -> np.ndarray:
         return t[name].to_numpy() if name in t else np.full(n, default, dtype=object)
 
-    drive_notes, loss_notes = col("drive_notes", ""), col("loss_notes", "")
-    i_warn, i_val, i_rat = (
-        col("_i_warn"),
-        col("current_continuous_value"),
-        col("_i_rating"),
+    def flag(name: str) -> np.ndarray:
+        v = col(name, False)
+        return np.asarray(pd.notna(v) & v.astype(bool), dtype=bool)
+
+    def text(values: np.ndarray) -> np.ndarray:
+        v = np.asarray(values, dtype=object)
+        keep = pd.notna(v) & v.astype(bool)
+        out = np.full(n, "", dtype=object)
+        out[keep] = [str(x) for x in v[keep]]
+        return out
+
+    items: list[np.ndarray] = [text(col("drive_notes", ""))]
+
+    warn = np.full(n, "", dtype=object)
+    w = np.flatnonzero(flag("_i_warn"))
+    if w.size:
+        i_val, i_rat = col("current_continuous_value"), col("_i_rating")
+        warn[w] = [
+            f"runs at {_q(i_val[i], 'A')} per device, above "
+            f"{_g(checks.CURRENT_DERATING)} × its {_q(i_rat[i], 'A')} rating"
+            for i in w
+        ]
+    items.append(warn)
+
+    peak = np.full(n, "", dtype=object)
+    if channel.peak > channel.current:
+        peak[flag("_pk_from_rating")] = (
+            "no pulsed rating (i_pulse): the peak was checked against i_rating"
+        )
+    items.append(peak)
+
+    diode = np.full(n, "", dtype=object)
+    needs = flag("needs_diode")
+    diode[needs] = "needs a freewheel diode across the load"
+    av = np.flatnonzero(~needs & flag("avalanche_ok"))
+    if av.size:
+        av_val, av_lim, av_p = (
+            col("avalanche_value"),
+            col("avalanche_limit"),
+            col("_av_p"),
+        )
+        t_lim = col("t_lim_c")
+        diode[av] = [
+            f"may absorb the coil's {_q(av_val[i], 'J')} turn-off energy in "
+            f"avalanche (≤ {_g(settings.avalanche_acceptance)} × E_AS at "
+            f"{_q(t_lim[i], '°C')} = {_q(av_lim[i], 'J')}"
+            + (f"; {_q(av_p[i], 'W')} on average" if av_p[i] > 0 else "")
+            + "); a freewheel diode is still the gentler choice"
+            for i in av
+        ]
+    items.append(diode)
+
+    runaway = np.full(n, "", dtype=object)
+    runaway[flag("runaway_no_sink")] = (
+        "needs a heatsink: alone in air it runs away thermally"
     )
-    from_rating = col("_pk_from_rating")
-    needs_diode, av_ok = col("needs_diode"), col("avalanche_ok")
-    av_val, av_lim, av_p = col("avalanche_value"), col("avalanche_limit"), col("_av_p")
-    t_lim, runaway = col("t_lim_c"), col("runaway_no_sink", False)
-    peak_note = channel.peak > channel.current
-    notes = []
-    for i in range(n):
-        items = []
-        if drive_notes[i]:
-            items.append(drive_notes[i])
-        if i_warn[i]:
-            items.append(
-                f"runs at {_q(i_val[i], 'A')} per device, above "
-                f"{_g(checks.CURRENT_DERATING)} × its {_q(i_rat[i], 'A')} rating"
-            )
-        if from_rating[i] and peak_note:
-            items.append(
-                "no pulsed rating (i_pulse): the peak was checked against i_rating"
-            )
-        if needs_diode[i]:
-            items.append("needs a freewheel diode across the load")
-        elif av_ok[i]:
-            items.append(
-                f"may absorb the coil's {_q(av_val[i], 'J')} turn-off energy in "
-                f"avalanche (≤ {_g(settings.avalanche_acceptance)} × E_AS at "
-                f"{_q(t_lim[i], '°C')} = {_q(av_lim[i], 'J')}"
-                + (f"; {_q(av_p[i], 'W')} on average" if av_p[i] > 0 else "")
-                + "); a freewheel diode is still the gentler choice"
-            )
-        if bool(runaway[i]):
-            items.append("needs a heatsink: alone in air it runs away thermally")
-        if loss_notes[i]:
-            items.append(str(loss_notes[i]))
-        notes.append("; ".join(items))
-    return notes
+    items.append(runaway)
+    items.append(text(col("loss_notes", "")))
+
+    # join the non-empty items of each row with "; ", per distinct combination
+    stacked = np.column_stack(items)
+    codes = np.zeros(n, dtype=np.int64)
+    for item in items:  # one integer per distinct combination, kept compact
+        c, u = pd.factorize(item)
+        codes = pd.factorize(codes * (len(u) + 1) + (c + 1))[0]
+    uniq = np.unique(codes)
+    first_row = np.full(len(uniq), -1)
+    first_row[codes[::-1]] = np.arange(n)[::-1]
+    joined = np.array(
+        ["; ".join(x for x in stacked[r] if x) for r in first_row], dtype=object
+    )
+    return joined[codes].tolist()
 
 
 _PUBLIC_DROP = (
