@@ -1131,20 +1131,33 @@ def _finish_side(
             "_best": np.zeros(len(rej_idx), dtype=int),
         }
     )
-    cols = [c for c in _SENTENCE_COLUMNS if c in t]
     job = _SentenceJob(
-        t[cols].iloc[rej_idx].reset_index(drop=True),
+        _take(t, [c for c in _SENTENCE_COLUMNS if c in t], rej_idx),
         fr,
         channel,
         conditions,
         settings,
         diode_text,
     )
-    passed = t[~bad].copy()
-    passed["notes"] = pd.Series(
-        _row_notes(passed, channel, settings), index=passed.index, dtype=object
-    )
+    ok_idx = np.flatnonzero(~bad)
+    public = [c for c in t.columns if not c.startswith("_") and c not in _PUBLIC_DROP]
+    passed = _take(t, public, ok_idx)
+    note_src = _take(t, [c for c in _NOTE_COLUMNS if c in t], ok_idx)
+    passed["notes"] = pd.Series(_row_notes(note_src, channel, settings), dtype=object)
     return passed, rejected, job
+
+
+def _take(t: pd.DataFrame, cols: list[str], rows: np.ndarray) -> pd.DataFrame:
+    """These columns of these rows as a new frame, column by column.
+
+    The side table is a join of many blocks; selecting rows from it directly makes
+    pandas consolidate (copy) every column first. Text stays plain objects.
+    """
+    out = {}
+    for c in cols:
+        v = t[c].to_numpy()[rows]
+        out[c] = pd.Series(v, dtype=object) if v.dtype == object else v
+    return pd.DataFrame(out, index=pd.RangeIndex(len(rows)))
 
 
 def _clean(passed: pd.DataFrame) -> pd.DataFrame:
