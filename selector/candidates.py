@@ -165,6 +165,10 @@ _INTERFACE_INPUT = (
     "t_lim_c",
 )
 
+#: Sink-capacity entries (rows × sinks, 8 bytes each) the group stage keeps between its
+#: passes instead of recomputing them (16 M entries = 128 MB).
+PMAX_CACHE_ENTRIES = 16_000_000
+
 #: Entries a caller's memo (see :func:`build_selection`) keeps at most.
 MEMO_ENTRIES = 256
 
@@ -1304,7 +1308,16 @@ def _reduce_group(
         inf = np.full(n_s, np.inf)
         minheat = {m: inf.copy() for m in members}
         mindev = {m: inf.copy() for m in members}
-        for ix, pm in pmax_chunks(kidx):
+        # the three passes below read the same capacity blocks: keep them when they
+        # are small enough (PMAX_CACHE_ENTRIES floats), else compute them each time
+        blocks = (
+            list(pmax_chunks(kidx)) if kidx.size * n_s <= PMAX_CACHE_ENTRIES else None
+        )
+
+        def kidx_blocks():
+            return iter(blocks) if blocks is not None else pmax_chunks(kidx)
+
+        for ix, pm in kidx_blocks():
             alone = (pm >= heat[ix, None]) & (pm > 0) & (kpos[None, :] >= dev[ix, None])
             for m in members:
                 sel = m_code[ix] == m_pos[m]
@@ -1346,7 +1359,7 @@ def _reduce_group(
             )
 
         lbs = {m: inf.copy() for m in members}
-        for ix, pm in pmax_chunks(kidx):
+        for ix, pm in kidx_blocks():
             ok = ok_block(ix, pm)
             for m in members:
                 sel = m_code[ix] == m_pos[m]
@@ -1363,7 +1376,7 @@ def _reduce_group(
         olb = others(lbs)
         olb_m = np.stack([olb[m] for m in members])
         used_sink = np.zeros(n_s, dtype=bool)
-        for ix, pm in pmax_chunks(kidx):
+        for ix, pm in kidx_blocks():
             useful = ok_block(ix, pm) & sink_useful[None, :]
             if math.isfinite(ub):
                 o_lb = olb_m[m_code[ix]] + kprice[None, :]
