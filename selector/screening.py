@@ -6,7 +6,9 @@ guaranteed Rds(on); the controller gives 3.3 V"). :func:`screen_channel` evaluat
 (switch, parallel count) row of the inventory for one channel
 (:func:`selector.evaluate.evaluate_switches`), applies every rule vectorised, and
 returns the rows that pass, the rows that fail with all their reasons, and the funnel
-(count of rejected rows per first failing rule).
+(count of rejected rows per first failing rule). The reason sentences are written when
+they are first read (:attr:`ScreenResult.rejected`): a pick on a large inventory needs
+none of them.
 
 Rules, in funnel order
 ----------------------
