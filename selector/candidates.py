@@ -121,6 +121,7 @@ import pandas as pd
 
 from selector import evaluate as _evaluate
 from selector import heatsinks as _heatsinks
+from selector.frames import object_column as _obj
 
 CANDIDATE_COLUMNS: dict[str, str] = {
     "channel": "str",
@@ -392,13 +393,6 @@ def _strs(col: pd.Series) -> pd.Series:
     if col.dtype == object and pd.api.types.infer_dtype(v, skipna=False) == "string":
         return col
     return pd.Series(_text(col.to_frame("x"), "x"), index=col.index, dtype=object)
-
-
-def _obj(values, n: int | None = None, index=None) -> pd.Series:
-    """An object-dtype column (pandas' arrow strings make row selection slow here)."""
-    if n is not None:
-        values = np.full(n, values, dtype=object)
-    return pd.Series(np.asarray(values, dtype=object), index=index, dtype=object)
 
 
 def stock_allows(stock: np.ndarray, units) -> np.ndarray:

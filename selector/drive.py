@@ -63,6 +63,7 @@ from typing import Any
 import numpy as np
 import pandas as pd
 
+from selector.frames import object_column
 from selector.losses import _RdsLookup, rds_at_drive
 from selector.models import Channel, Settings
 
@@ -686,8 +687,7 @@ def drive_table(
     notes = _notes(kind, gate_min, vgs_max, side, channel, settings, clamp)
 
     def text(values: Any) -> pd.Series:  # plain objects: arrow strings cost more later
-        v = np.asarray(values, dtype=object)
-        return pd.Series(np.broadcast_to(v, (n,)).copy(), index=idx, dtype=object)
+        return object_column(values, index=idx)
 
     return pd.DataFrame(
         {

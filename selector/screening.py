@@ -51,6 +51,7 @@ import numpy as np
 import pandas as pd
 
 from selector import checks, drive
+from selector.frames import object_column
 from selector.models import Channel, Conditions, Settings
 
 __all__ = [
@@ -1111,10 +1112,7 @@ def _finish_side(
         ]
         rules_col = [named[k] for k in np.asarray(inv).ravel()]
 
-    def obj(values: Any) -> pd.Series:  # plain objects: arrow strings cost more here
-        if isinstance(values, list):  # of tuples: one cell each
-            return pd.Series(values, dtype=object)
-        return pd.Series(np.asarray(values, dtype=object), dtype=object)
+    obj = object_column  # plain objects: arrow strings cost more here
 
     rejected = pd.DataFrame(
         {
