@@ -342,13 +342,7 @@ def local_front(keys: np.ndarray, values: np.ndarray, chunk: int = 4096) -> np.n
 
 def fit_items(fits: Any) -> tuple[str, ...]:
     """Packages of a ``fits`` cell (tuple or ``;``-separated text), upper case."""
-    if isinstance(fits, str):
-        items = [s.strip() for s in fits.replace(",", ";").split(";")]
-    elif fits is None or (isinstance(fits, float) and math.isnan(fits)):
-        items = []
-    else:
-        items = [str(s).strip() for s in fits]
-    return tuple(s.upper() for s in items if s)
+    return tuple(_evaluate._fit_items(fits))
 
 
 def _num(df: pd.DataFrame, col: str, default: float = np.nan) -> np.ndarray:
@@ -373,10 +367,9 @@ def _text(df: pd.DataFrame, col: str) -> np.ndarray:
 
 
 def _upper(text: np.ndarray) -> np.ndarray:
-    """Upper-case text (object array), each distinct value converted once."""
-    codes, uniq = pd.factorize(np.asarray(text, dtype=object))
-    up = np.array([str(u).upper() for u in uniq] + [""], dtype=object)
-    return up[np.where(codes < 0, len(uniq), codes)]
+    """Upper-case text (object array, "" for blanks), each distinct value once."""
+    codes, uniq = _evaluate._package_codes(pd.Series(text, dtype=object))
+    return np.append(np.asarray(uniq, dtype=object), "")[codes]
 
 
 def _strs(col: pd.Series) -> pd.Series:
@@ -865,6 +858,20 @@ def _safe_mask(cand: pd.DataFrame, board_demand: dict[str, float]) -> np.ndarray
     )
 
 
+def _cost_order(
+    cand: pd.DataFrame, prune: PruneSettings, board_demand: dict[str, float]
+) -> tuple[np.ndarray, dict[str, float]]:
+    """:func:`_prefix_rule` on a candidate table: (keep mask, stop cost per class)."""
+    return _prefix_rule(
+        cand["cost"].to_numpy(float),
+        cand["margin_k"].to_numpy(float),
+        _need_class(cand),
+        cand["switch"].to_numpy(dtype=object),
+        _safe_mask(cand, board_demand),
+        prune,
+    )
+
+
 def _prune_ungrouped(
     cand: pd.DataFrame, prune: PruneSettings, board_demand: dict[str, float]
 ) -> tuple[pd.DataFrame, dict[str, float]]:
@@ -875,14 +882,7 @@ def _prune_ungrouped(
     """
     if len(cand) == 0:
         return cand, {}
-    keep, stops = _prefix_rule(
-        cand["cost"].to_numpy(float),
-        cand["margin_k"].to_numpy(float),
-        _need_class(cand),
-        cand["switch"].to_numpy(dtype=object),
-        _safe_mask(cand, board_demand),
-        prune,
-    )
+    keep, stops = _cost_order(cand, prune, board_demand)
     kept = cand[keep]
     kept = kept.sort_values(
         ["cost", "margin_k"], ascending=[True, False], kind="stable"
@@ -944,14 +944,7 @@ def _ungrouped_table(
         if i >= len(opts):
             break
         cur = pd.concat(found, ignore_index=True)
-        _, stops = _prefix_rule(
-            cur["cost"].to_numpy(float),
-            cur["margin_k"].to_numpy(float),
-            _need_class(cur),
-            cur["switch"].to_numpy(dtype=object),
-            _safe_mask(cur, board_demand),
-            prune,
-        )
+        _, stops = _cost_order(cur, prune, board_demand)
         nxt = base_cost[i]
         remaining = [k for k, lp in last.items() if lp >= i]
         if all(stops.get(k, math.inf) < nxt for k in remaining):
