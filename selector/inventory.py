@@ -3067,27 +3067,16 @@ def load_inventory(
         df, pts, counts, arrow_parts = _assemble(TABLES[t], by_table[t], report)
         frames[t] = df
         report.tables[t] = counts
-        if len(pts) and t == "switches":
+        # point columns: Rds(on) per gate voltage, RθSA per airflow
+        axes = {"switches": ("rds_on", "vgs"), "heatsinks": ("rth_sa", "airflow")}
+        if len(pts) and t in axes:
+            value, axis = axes[t]
             table = _points_table(
-                pts,
-                "rds_on",
-                "vgs",
-                "rds_on",
-                df["part"].to_numpy(dtype=object),
-                arrow_parts,
+                pts, value, axis, value, df["part"].to_numpy(dtype=object), arrow_parts
             )
-            if table is not None:
+            if table is not None and t == "switches":
                 rds_points = table
-        if len(pts) and t == "heatsinks":
-            table = _points_table(
-                pts,
-                "rth_sa",
-                "airflow",
-                "rth_sa",
-                df["part"].to_numpy(dtype=object),
-                arrow_parts,
-            )
-            if table is not None:
+            elif table is not None:
                 sink_airflow = table
 
     def order(i: RowIssue) -> tuple:
