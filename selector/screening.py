@@ -260,13 +260,10 @@ class ScreenResult:
         """(reason, reasons) of the rejected rows at these positions."""
         rr = self.rejected_rows
         pos = np.asarray(positions, dtype=int)
-        if "_refs" not in rr.columns:
-            return [
-                (str(rr["reason"].iloc[i]), tuple(rr["reasons"].iloc[i]))
-                if "reasons" in rr
-                else (str(rr.get("reason", pd.Series([""] * len(rr))).iloc[i]), ())
-                for i in pos
-            ]
+        if "_refs" not in rr.columns:  # a table given with its sentences written
+            reason = rr["reason"] if "reason" in rr else pd.Series([""] * len(rr))
+            reasons = rr["reasons"] if "reasons" in rr else pd.Series([()] * len(rr))
+            return [(str(reason.iloc[i]), tuple(reasons.iloc[i])) for i in pos]
         jobs = rr["_job"].to_numpy()[pos]
         rows_at = rr["_row"].to_numpy()[pos]
         # a row rejected on one side refers to (its job, its row); a side "any" row
